@@ -1,0 +1,149 @@
+using System.Numerics;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
+
+namespace Lookahead.Core.Numerics;
+
+/// <summary>
+/// Request-time kernels on row-major spans. They allocate nothing and check lengths up front.
+/// No destination may alias an input.
+/// </summary>
+public static class DenseKernels
+{
+    /// <summary>Σ x_i y_i, vectorised.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public static double Dot(ReadOnlySpan<double> x, ReadOnlySpan<double> y)
+    {
+        if (x.Length != y.Length)
+        {
+            throw new ArgumentException("x and y must have the same length");
+        }
+
+        int i = 0;
+        double sum = 0;
+        if (Vector.IsHardwareAccelerated && x.Length >= Vector<double>.Count * 2)
+        {
+            var xv = MemoryMarshal.Cast<double, Vector<double>>(x);
+            var yv = MemoryMarshal.Cast<double, Vector<double>>(y);
+            var acc0 = Vector<double>.Zero;
+            var acc1 = Vector<double>.Zero;
+            int v = 0;
+            for (; v + 1 < xv.Length; v += 2)
+            {
+                acc0 += xv[v] * yv[v];
+                acc1 += xv[v + 1] * yv[v + 1];
+            }
+
+            for (; v < xv.Length; v++)
+            {
+                acc0 += xv[v] * yv[v];
+            }
+
+            sum = Vector.Sum(acc0 + acc1);
+            i = xv.Length * Vector<double>.Count;
+        }
+
+        for (; i < x.Length; i++)
+        {
+            sum += x[i] * y[i];
+        }
+
+        return sum;
+    }
+
+    /// <summary>y += M x for row-major M (rows × x.Length).</summary>
+    /// <exception cref="ArgumentException">Lengths do not match.</exception>
+    public static void MultiplyAdd(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    {
+        int cols = x.Length;
+        int rows = y.Length;
+        if (m.Length != rows * cols)
+        {
+            throw new ArgumentException($"matrix has {m.Length} entries; expected {rows}×{cols}");
+        }
+
+        for (int i = 0; i < rows; i++)
+        {
+            y[i] += Dot(m.Slice(i * cols, cols), x);
+        }
+    }
+
+    /// <summary>y = M x for row-major M (rows × x.Length).</summary>
+    public static void Multiply(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    {
+        y.Clear();
+        MultiplyAdd(m, x, y);
+    }
+
+    /// <summary>y += Mᵀ x for row-major M (x.Length × y.Length).</summary>
+    /// <exception cref="ArgumentException">Lengths do not match.</exception>
+    public static void MultiplyTransposedAdd(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    {
+        int rows = x.Length;
+        int cols = y.Length;
+        if (m.Length != rows * cols)
+        {
+            throw new ArgumentException($"matrix has {m.Length} entries; expected {rows}×{cols}");
+        }
+
+        for (int i = 0; i < rows; i++)
+        {
+            double xi = x[i];
+            if (xi == 0)
+            {
+                continue;
+            }
+
+            var row = m.Slice(i * cols, cols);
+            for (int j = 0; j < cols; j++)
+            {
+                y[j] += row[j] * xi;
+            }
+        }
+    }
+
+    /// <summary>xᵀ W x for a row-major square W; when <paramref name="diagonal"/> is set, only W's diagonal is read.</summary>
+    public static double QuadraticForm(ReadOnlySpan<double> w, ReadOnlySpan<double> x, bool diagonal)
+    {
+        int n = x.Length;
+        if (w.Length != n * n)
+        {
+            throw new ArgumentException($"weight has {w.Length} entries; expected {n}×{n}");
+        }
+
+        double sum = 0;
+        if (diagonal)
+        {
+            for (int i = 0; i < n; i++)
+            {
+                sum += w[(i * n) + i] * x[i] * x[i];
+            }
+
+            return sum;
+        }
+
+        for (int i = 0; i < n; i++)
+        {
+            sum += x[i] * Dot(w.Slice(i * n, n), x);
+        }
+
+        return sum;
+    }
+
+    /// <summary>True when every off-diagonal entry of the row-major square matrix is exactly zero.</summary>
+    public static bool IsDiagonal(ReadOnlySpan<double> w, int n)
+    {
+        for (int i = 0; i < n; i++)
+        {
+            for (int j = 0; j < n; j++)
+            {
+                if (i != j && w[(i * n) + j] != 0)
+                {
+                    return false;
+                }
+            }
+        }
+
+        return true;
+    }
+}

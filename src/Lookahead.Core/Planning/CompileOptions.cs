@@ -1,0 +1,17 @@
+using Lookahead.Core.Validation;
+
+namespace Lookahead.Core.Planning;
+
+/// <summary>Settings for <see cref="ModelCompiler"/>.</summary>
+public sealed record CompileOptions
+{
+    public SizeLimits SizeLimits { get; init; } = SizeLimits.Default;
+
+    /// <summary>Active-set iteration cap per constrained plan; null means 3 × (number of inequality rows) + 10.</summary>
+    public int? MaxSolverIterations { get; init; }
+
+    /// <summary>Condition number above which the Hessian is reported as ill-conditioned.</summary>
+    public double IllConditionedThreshold { get; init; } = 1e10;
+
+    public static CompileOptions Default { get; } = new();
+}

@@ -1,0 +1,228 @@
+using Lookahead.Core.Models;
+using Lookahead.Core.Numerics;
+using Lookahead.Core.Validation;
+using MathNet.Numerics.LinearAlgebra;
+
+namespace Lookahead.Core.Planning;
+
+/// <summary>
+/// A model ready to answer plans. For y_k = C x_k, x_0 the measured state and horizon N it minimises
+/// <code>
+/// J = Σ_{k=0}^{N−1} [ (y_k − r)ᵀQ(y_k − r) + (u_k − u_s)ᵀR(u_k − u_s) + Δu_kᵀSΔu_k ] + (x_N − x_s)ᵀP(x_N − x_s)
+/// </code>
+/// subject to x_{k+1} = A x_k + B u_k, with Δu_k = u_k − u_{k−1} (the Δu_0 term only when the previous input is given).
+/// Immutable and safe to share between threads: every plan works on its own result and stack space.
+/// </summary>
+public sealed class CompiledModel
+{
+    private readonly ValidatedModel model;
+    private readonly GainSet withoutPrevious;
+    private readonly GainSet withPrevious;
+    private readonly TargetMap targets;
+    private readonly TrajectoryEvaluator trajectory;
+    private readonly bool refine;
+
+    /// <summary>Above this Hessian condition number every plan takes refinement steps.</summary>
+    internal const double RefinementCondition = 1e6;
+
+    internal CompiledModel(
+        ValidatedModel model,
+        Matrix<double> a,
+        Matrix<double> b,
+        Matrix<double> terminal,
+        GainSet withoutPrevious,
+        GainSet withPrevious,
+        TargetMap targets,
+        ModelDiagnostics diagnostics,
+        RecedingHorizonGain gain,
+        CompileOptions options)
+    {
+        this.model = model;
+        this.withoutPrevious = withoutPrevious;
+        this.withPrevious = withPrevious;
+        this.targets = targets;
+        Options = options;
+        DiscreteA = DenseMatrix.Rows(a);
+        DiscreteB = DenseMatrix.Rows(b);
+        TerminalWeight = DenseMatrix.Rows(terminal);
+        Diagnostics = diagnostics;
+        Gain = gain;
+        refine = diagnostics.HessianCondition > RefinementCondition;
+        trajectory = new TrajectoryEvaluator(a, b, model.C, model.OutputIsState, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal);
+    }
+
+    public ModelDocument Document => model.Document;
+
+    public int StateCount => model.StateCount;
+
+    public int InputCount => model.InputCount;
+
+    public int OutputCount => model.OutputCount;
+
+    public int Horizon => model.Horizon;
+
+    public int DecisionVariables => model.Horizon * model.InputCount;
+
+    public double SampleTime => model.SampleTime;
+
+    /// <summary>A after zero-order hold (or as given for a discrete plant), as rows.</summary>
+    public double[][] DiscreteA { get; }
+
+    /// <summary>B after zero-order hold (or as given for a discrete plant), as rows.</summary>
+    public double[][] DiscreteB { get; }
+
+    /// <summary>The terminal weight P actually used.</summary>
+    public double[][] TerminalWeight { get; }
+
+    public ModelDiagnostics Diagnostics { get; }
+
+    public RecedingHorizonGain Gain { get; }
+
+    internal CompileOptions Options { get; }
+
+    internal ValidatedModel Model => model;
+
+    internal TrajectoryEvaluator Trajectory => trajectory;
+
+    /// <summary>Approximate memory held by this object, for cache accounting.</summary>
+    public long EstimatedBytes => withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes) + 4096;
+
+    /// <summary>Checks a request's vectors against this model; an empty list means it is acceptable.</summary>
+    public IReadOnlyList<ValidationError> ValidateRequest(PlanRequest request)
+    {
+        var errors = new List<ValidationError>();
+        if (request is null)
+        {
+            errors.Add(new("", "the request is missing"));
+            return errors;
+        }
+
+        CheckVector(request.State, "state", StateCount, required: true, errors);
+        CheckVector(request.Reference, "reference", OutputCount, required: false, errors);
+        CheckVector(request.PreviousInput, "previousInput", InputCount, required: false, errors);
+        return errors;
+    }
+
+    /// <summary>The optimal plan for one measured state.</summary>
+    /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
+    public Plan Plan(PlanRequest request)
+    {
+        var errors = ValidateRequest(request);
+        if (errors.Count > 0)
+        {
+            throw new ModelValidationException(errors);
+        }
+
+        int n = StateCount;
+        int m = InputCount;
+        int p = OutputCount;
+        var plan = new Plan(Horizon, n, m, p);
+        var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
+        Span<double> u = plan.Inputs;
+
+        DenseKernels.MultiplyAdd(gains.Kx, request.State, u);
+        Span<double> targetState = n <= 256 ? stackalloc double[n] : new double[n];
+        Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
+        targetState.Clear();
+        targetInput.Clear();
+        if (request.Reference is { } reference)
+        {
+            DenseKernels.Multiply(targets.StateMap, reference, targetState);
+            DenseKernels.Multiply(targets.InputMap, reference, targetInput);
+            DenseKernels.MultiplyAdd(gains.Kr, reference, u);
+            DenseKernels.MultiplyAdd(gains.Kxs, targetState, u);
+            DenseKernels.MultiplyAdd(gains.Kus, targetInput, u);
+            plan.Target = MakeTarget(reference, targetState, targetInput, limited: false);
+        }
+
+        if (request.PreviousInput is { } previous)
+        {
+            DenseKernels.MultiplyAdd(gains.Kup, previous, u);
+        }
+
+        for (int i = 0; i < u.Length; i++)
+        {
+            u[i] = -u[i];
+        }
+
+        plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput);
+        if (refine)
+        {
+            Refine(plan, gains, request, targetState, targetInput);
+        }
+
+        return plan;
+    }
+
+    /// <summary>
+    /// One step of iterative refinement, U ← U − H⁻¹g with g the adjoint gradient on the true trajectory.
+    /// Only for ill-conditioned models (strongly unstable plants over long horizons), where the condensed
+    /// solve alone loses digits in proportion to the condition number.
+    /// </summary>
+    private void Refine(Plan plan, GainSet gains, PlanRequest request, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput)
+    {
+        var rented = System.Buffers.ArrayPool<double>.Shared.Rent(DecisionVariables);
+        try
+        {
+            var gradient = rented.AsSpan(0, DecisionVariables);
+            for (int pass = 0; pass < 2; pass++)
+            {
+                trajectory.Gradient(plan.Inputs, plan.States, plan.Outputs, Horizon, request.Reference, targetState, targetInput, request.PreviousInput, gradient);
+                gains.Factor.Solve(gradient);
+                var u = plan.Inputs.AsSpan();
+                for (int i = 0; i < u.Length; i++)
+                {
+                    u[i] -= gradient[i];
+                }
+
+                plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput);
+            }
+        }
+        finally
+        {
+            System.Buffers.ArrayPool<double>.Shared.Return(rented);
+        }
+    }
+
+    private SteadyStateTarget MakeTarget(double[] reference, ReadOnlySpan<double> state, ReadOnlySpan<double> input, bool limited)
+    {
+        var output = new double[OutputCount];
+        trajectory.Output(state, output);
+        double worst = 0;
+        double scale = 1;
+        for (int j = 0; j < reference.Length; j++)
+        {
+            worst = Math.Max(worst, Math.Abs(output[j] - reference[j]));
+            scale = Math.Max(scale, Math.Abs(reference[j]));
+        }
+
+        return new SteadyStateTarget(state.ToArray(), input.ToArray(), output, worst <= 1e-9 * scale, limited);
+    }
+
+    private static void CheckVector(double[]? vector, string path, int size, bool required, List<ValidationError> errors)
+    {
+        if (vector is null)
+        {
+            if (required)
+            {
+                errors.Add(new(path, "is required"));
+            }
+
+            return;
+        }
+
+        if (vector.Length != size)
+        {
+            errors.Add(new(path, $"has {vector.Length} entries; expected {size}"));
+            return;
+        }
+
+        for (int i = 0; i < vector.Length; i++)
+        {
+            if (!double.IsFinite(vector[i]))
+            {
+                errors.Add(new($"{path}[{i}]", "must be a finite number"));
+            }
+        }
+    }
+}

@@ -1,0 +1,27 @@
+using MathNet.Numerics.LinearAlgebra;
+
+namespace Lookahead.Core.Planning;
+
+/// <summary>Conversions between MathNet matrices and the row-major arrays the request-time kernels read.</summary>
+internal static class DenseMatrix
+{
+    public static double[] RowMajor(Matrix<double> m)
+    {
+        var result = new double[m.RowCount * m.ColumnCount];
+        for (int i = 0; i < m.RowCount; i++)
+        {
+            for (int j = 0; j < m.ColumnCount; j++)
+            {
+                result[(i * m.ColumnCount) + j] = m[i, j];
+            }
+        }
+
+        return result;
+    }
+
+    public static double[][] Rows(Matrix<double> m) => m.ToRowArrays();
+
+    public static Matrix<double> FromRows(double[][] rows) => Matrix<double>.Build.DenseOfRowArrays(rows);
+
+    public static bool AllFinite(Matrix<double> m) => m.Enumerate().All(double.IsFinite);
+}

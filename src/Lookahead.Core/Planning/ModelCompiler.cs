@@ -1,0 +1,116 @@
+using Lookahead.Core.Models;
+using Lookahead.Core.Numerics;
+using Lookahead.Core.Validation;
+using MathNet.Numerics.LinearAlgebra;
+
+namespace Lookahead.Core.Planning;
+
+/// <summary>Validates, discretises, condenses and factorises a model once, producing an immutable <see cref="CompiledModel"/>.</summary>
+public static class ModelCompiler
+{
+    /// <summary>Compiles <paramref name="document"/>.</summary>
+    /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
+    public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null)
+    {
+        options ??= CompileOptions.Default;
+        var model = ModelValidator.Build(document, options.SizeLimits);
+        int n = model.StateCount;
+        var a = model.A;
+        var b = model.B;
+        if (model.TimeDomain == TimeDomain.Continuous)
+        {
+            (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
+        }
+
+        var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);
+        qx = (qx + qx.Transpose()) * 0.5;
+        var warnings = new List<string>();
+
+        RiccatiSolution? riccati = null;
+        Matrix<double> terminal;
+        switch (model.TerminalKind)
+        {
+            case TerminalWeightKind.Riccati:
+                try
+                {
+                    riccati = DiscreteRiccati.Solve(a, b, qx, model.InputWeight);
+                }
+                catch (RiccatiException ex)
+                {
+                    throw new ModelValidationException("cost.terminalWeight", $"'riccati' is not available for this plant: {ex.Message}. Use 'stage' or an explicit matrix");
+                }
+
+                terminal = riccati.P;
+                break;
+            case TerminalWeightKind.Stage:
+                terminal = qx;
+                break;
+            default:
+                terminal = model.TerminalMatrix!;
+                break;
+        }
+
+        bool hasRateWeight = model.InputRateWeight.Enumerate().Any(v => v != 0);
+        var withoutPrevious = BuildGains(model, a, b, terminal, withPreviousInput: false);
+        var withPrevious = hasRateWeight ? BuildGains(model, a, b, terminal, withPreviousInput: true) : withoutPrevious;
+        var targets = TargetMap.Build(a, b, model.C, model.OutputWeight);
+
+        // Diagnostics: what an engineer should read before closing the loop.
+        int rank = SystemProperties.ControllabilityRank(a, b);
+        var stabilisable = SystemProperties.Stabilisable(a, b);
+        var detectable = SystemProperties.Detectable(a, qx);
+        double openLoopRadius = SystemProperties.SpectralRadius(a);
+        var gainRows = Matrix<double>.Build.Dense(model.InputCount, n, (i, j) => withoutPrevious.Kx[(i * n) + j]);
+        var closedLoop = SystemProperties.Eigenvalues(a - (b * gainRows));
+        double closedLoopRadius = closedLoop.Select(z => z.Magnitude).DefaultIfEmpty(0).Max();
+        double condition = HessianCondition.Compute(withoutPrevious.Hessian);
+
+        if (closedLoopRadius >= 1)
+        {
+            warnings.Add($"closed loop unstable with this horizon and terminal weight: spectral radius of A − BK is {closedLoopRadius:g6}; lengthen the horizon or use the 'riccati' terminal weight");
+        }
+
+        if (!stabilisable.Holds)
+        {
+            warnings.Add($"the plant is not stabilisable: the mode at λ = {stabilisable.Witness.Real:g6}{(stabilisable.Witness.Imaginary != 0 ? $"{stabilisable.Witness.Imaginary:+0.######;-0.######}i" : "")} cannot be moved by any input");
+        }
+        else if (rank < n)
+        {
+            warnings.Add($"the plant is not controllable (controllability rank {rank} of {n}); the uncontrollable modes are stable and will decay on their own");
+        }
+
+        if (!detectable.Holds)
+        {
+            warnings.Add($"a mode with |λ| ≥ 1 (λ = {detectable.Witness.Real:g6}) is not seen by the output weight; plans will not act on it");
+        }
+
+        if (condition > options.IllConditionedThreshold)
+        {
+            warnings.Add($"the condensed Hessian is ill-conditioned (condition number {condition:g3}); plans may lose accuracy — shorten the horizon, raise the input weight, or rescale the model");
+        }
+
+        var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);
+        var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
+        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, targets, diagnostics, gain, options);
+    }
+
+    private static GainSet BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, bool withPreviousInput)
+    {
+        var condensed = Condensing.Build(a, b, model.C, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal, model.Horizon, withPreviousInput);
+        if (!DenseMatrix.AllFinite(condensed.Hessian) || !DenseMatrix.AllFinite(condensed.Fx))
+        {
+            throw new ModelValidationException("cost.horizon", "the predictions overflow over this horizon: the plant grows too fast for condensing; shorten the horizon or pre-stabilise the plant");
+        }
+
+        var cholesky = condensed.Hessian.Cholesky();
+        Matrix<double> Solve(Matrix<double> rhs) => cholesky.Solve(rhs);
+        return new GainSet(
+            condensed.Hessian,
+            new CholeskyFactor(condensed.Hessian),
+            DenseMatrix.RowMajor(Solve(condensed.Fx)),
+            DenseMatrix.RowMajor(Solve(condensed.Fr)),
+            DenseMatrix.RowMajor(Solve(condensed.Fxs)),
+            DenseMatrix.RowMajor(Solve(condensed.Fus)),
+            DenseMatrix.RowMajor(Solve(condensed.Fup)));
+    }
+}
