@@ -32,7 +32,38 @@ public sealed class CholeskyFactor
         }
     }
 
+    private CholeskyFactor(double[] lower, int size)
+    {
+        this.lower = lower;
+        Size = size;
+    }
+
     public int Size { get; }
+
+    /// <summary>The factor of blkdiag(H, diag(d)) built from H's factor, without refactoring H.</summary>
+    /// <exception cref="ArgumentException">An entry of <paramref name="diagonal"/> is not positive.</exception>
+    public CholeskyFactor WithDiagonalBlock(ReadOnlySpan<double> diagonal)
+    {
+        int n = Size + diagonal.Length;
+        var combined = new double[n * n];
+        for (int i = 0; i < Size; i++)
+        {
+            lower.AsSpan(i * Size, i + 1).CopyTo(combined.AsSpan(i * n, i + 1));
+        }
+
+        for (int k = 0; k < diagonal.Length; k++)
+        {
+            if (!(diagonal[k] > 0))
+            {
+                throw new ArgumentException("diagonal entries must be positive", nameof(diagonal));
+            }
+
+            int i = Size + k;
+            combined[(i * n) + i] = Math.Sqrt(diagonal[k]);
+        }
+
+        return new CholeskyFactor(combined, n);
+    }
 
     /// <summary>L, row-major (upper triangle zero). Read-only view.</summary>
     public ReadOnlySpan<double> Lower => lower;

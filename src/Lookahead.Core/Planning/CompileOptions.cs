@@ -10,6 +10,12 @@ public sealed record CompileOptions
     /// <summary>Active-set iteration cap per constrained plan; null means 3 × (number of inequality rows) + 10.</summary>
     public int? MaxSolverIterations { get; init; }
 
+    /// <summary>
+    /// Linear soft-limit weight ρ (the same for every output). Null: chosen automatically and raised while a
+    /// violation still shrinks (see <see cref="ConstrainedProblem"/>); set it only to reproduce a reference solution.
+    /// </summary>
+    public double? SoftLimitLinearWeight { get; init; }
+
     /// <summary>Condition number above which the Hessian is reported as ill-conditioned.</summary>
     public double IllConditionedThreshold { get; init; } = 1e10;
 

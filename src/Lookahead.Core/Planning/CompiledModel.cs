@@ -21,6 +21,9 @@ public sealed class CompiledModel
     private readonly TargetMap targets;
     private readonly TrajectoryEvaluator trajectory;
     private readonly bool refine;
+    private readonly ConstrainedProblem? constrainedWithoutPrevious;
+    private readonly ConstrainedProblem? constrainedWithPrevious;
+    private readonly TargetSolver? targetSolver;
 
     /// <summary>Above this Hessian condition number every plan takes refinement steps.</summary>
     internal const double RefinementCondition = 1e6;
@@ -32,7 +35,10 @@ public sealed class CompiledModel
         Matrix<double> terminal,
         GainSet withoutPrevious,
         GainSet withPrevious,
+        ConstrainedProblem? constrainedWithoutPrevious,
+        ConstrainedProblem? constrainedWithPrevious,
         TargetMap targets,
+        TargetSolver? targetSolver,
         ModelDiagnostics diagnostics,
         RecedingHorizonGain gain,
         CompileOptions options)
@@ -41,6 +47,9 @@ public sealed class CompiledModel
         this.withoutPrevious = withoutPrevious;
         this.withPrevious = withPrevious;
         this.targets = targets;
+        this.constrainedWithoutPrevious = constrainedWithoutPrevious;
+        this.constrainedWithPrevious = constrainedWithPrevious;
+        this.targetSolver = targetSolver;
         Options = options;
         DiscreteA = DenseMatrix.Rows(a);
         DiscreteB = DenseMatrix.Rows(b);
@@ -84,8 +93,24 @@ public sealed class CompiledModel
 
     internal TrajectoryEvaluator Trajectory => trajectory;
 
+    internal ConstrainedProblem? ConstrainedWithoutPrevious => constrainedWithoutPrevious;
+
+    internal ConstrainedProblem? ConstrainedWithPrevious => constrainedWithPrevious;
+
     /// <summary>Approximate memory held by this object, for cache accounting.</summary>
-    public long EstimatedBytes => withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes) + 4096;
+    public long EstimatedBytes =>
+        withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes)
+        + (constrainedWithoutPrevious?.Bytes ?? 0) + (ReferenceEquals(constrainedWithPrevious, constrainedWithoutPrevious) ? 0 : constrainedWithPrevious?.Bytes ?? 0)
+        + 4096;
+
+    /// <summary>True when the model carries any input, rate or output limit.</summary>
+    public bool HasLimits => constrainedWithoutPrevious is not null;
+
+    /// <summary>Inequality rows of the limited problem (0 without limits).</summary>
+    public int LimitRowCount => constrainedWithoutPrevious?.RowCount ?? 0;
+
+    /// <summary>Iteration cap of the active-set solver per plan.</summary>
+    public int MaxSolverIterations => Options.MaxSolverIterations ?? Math.Max(50, 2 * LimitRowCount);
 
     /// <summary>Checks a request's vectors against this model; an empty list means it is acceptable.</summary>
     public IReadOnlyList<ValidationError> ValidateRequest(PlanRequest request)
@@ -125,14 +150,22 @@ public sealed class CompiledModel
         Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
+        var warnings = new List<string>();
         if (request.Reference is { } reference)
         {
             DenseKernels.Multiply(targets.StateMap, reference, targetState);
             DenseKernels.Multiply(targets.InputMap, reference, targetInput);
+            bool limited = targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
             DenseKernels.MultiplyAdd(gains.Kr, reference, u);
             DenseKernels.MultiplyAdd(gains.Kxs, targetState, u);
             DenseKernels.MultiplyAdd(gains.Kus, targetInput, u);
-            plan.Target = MakeTarget(reference, targetState, targetInput, limited: false);
+            plan.Target = MakeTarget(reference, targetState, targetInput, limited);
+            if (!plan.Target.ReferenceReached)
+            {
+                warnings.Add(limited
+                    ? "the setpoint cannot be held within the input limits; the plan steers to the closest reachable steady state"
+                    : "the setpoint is not an equilibrium the inputs can hold; the plan steers to the closest steady state (least squares)");
+            }
         }
 
         if (request.PreviousInput is { } previous)
@@ -145,10 +178,33 @@ public sealed class CompiledModel
             u[i] = -u[i];
         }
 
-        plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput);
-        if (refine)
+        var constrained = request.PreviousInput is null ? constrainedWithoutPrevious : constrainedWithPrevious;
+        if (constrained is not null)
         {
-            Refine(plan, gains, request, targetState, targetInput);
+            var outcome = constrained.Solve(u, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations);
+            plan.Status = outcome.Status;
+            plan.Iterations = outcome.Iterations;
+            plan.ActiveLimits = outcome.ActiveLimits;
+            warnings.AddRange(outcome.Warnings);
+            plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput) + outcome.Penalty;
+            plan.MaxOutputViolation = constrained.MaxViolation(plan.Outputs, p);
+            if (plan.MaxOutputViolation > 1e-9)
+            {
+                warnings.Add($"the predicted outputs exceed their soft limits by up to {plan.MaxOutputViolation:g4}: the hard input limits leave no plan that respects them");
+            }
+        }
+        else
+        {
+            plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput);
+            if (refine)
+            {
+                Refine(plan, gains, request, targetState, targetInput);
+            }
+        }
+
+        if (warnings.Count > 0)
+        {
+            plan.Warnings = warnings;
         }
 
         return plan;

@@ -54,6 +54,24 @@ public static class ModelCompiler
         var withoutPrevious = BuildGains(model, a, b, terminal, withPreviousInput: false);
         var withPrevious = hasRateWeight ? BuildGains(model, a, b, terminal, withPreviousInput: true) : withoutPrevious;
         var targets = TargetMap.Build(a, b, model.C, model.OutputWeight);
+        ConstrainedProblem? constrainedWithout = null;
+        ConstrainedProblem? constrainedWith = null;
+        TargetSolver? targetSolver = null;
+        if (model.Limits.Any)
+        {
+            long entries = ConstrainedProblem.OutputRowEntries(model);
+            if (entries > ConstrainedProblem.MaxOutputRowEntries)
+            {
+                throw new ModelValidationException("limits", $"soft output limits over this horizon need {entries:N0} coefficients; at most {ConstrainedProblem.MaxOutputRowEntries:N0} are allowed — limit fewer outputs or shorten the horizon");
+            }
+
+            constrainedWithout = new ConstrainedProblem(model, a, b, withoutPrevious);
+            constrainedWith = ReferenceEquals(withPrevious, withoutPrevious) ? constrainedWithout : new ConstrainedProblem(model, a, b, withPrevious);
+            if (model.Limits.HasInputBounds)
+            {
+                targetSolver = new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits);
+            }
+        }
 
         // Diagnostics: what an engineer should read before closing the loop.
         int rank = SystemProperties.ControllabilityRank(a, b);
@@ -91,7 +109,7 @@ public static class ModelCompiler
 
         var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);
         var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
-        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, targets, diagnostics, gain, options);
+        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, targets, targetSolver, diagnostics, gain, options);
     }
 
     private static GainSet BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, bool withPreviousInput)

@@ -376,9 +376,11 @@ public static class ModelValidator
             {
                 for (int j = 0; j < p; j++)
                 {
-                    if (!double.IsFinite(given[j]) || given[j] <= 0)
+                    // An output without limits may carry weight 0; one with limits needs a positive weight.
+                    bool limited = double.IsFinite(outputMin[j]) || double.IsFinite(outputMax[j]);
+                    if (!double.IsFinite(given[j]) || given[j] < 0 || (limited && given[j] == 0))
                     {
-                        errors.Add(new($"limits.outputViolationWeight[{j}]", "must be a finite number greater than 0"));
+                        errors.Add(new($"limits.outputViolationWeight[{j}]", limited ? "must be a finite number greater than 0 for an output with limits" : "must be a finite number ≥ 0"));
                     }
 
                     weight[j] = given[j];

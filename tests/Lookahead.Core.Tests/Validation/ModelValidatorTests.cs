@@ -92,7 +92,7 @@ public class ModelValidatorTests
 
     [Fact]
     public void RefusesNonPositiveViolationWeight() =>
-        AssertRefused(Valid() with { Limits = new LimitsSpec(OutputMax: [1.0, null], OutputViolationWeight: [1.0, 0.0]) }, "limits.outputViolationWeight[1]");
+        AssertRefused(Valid() with { Limits = new LimitsSpec(OutputMax: [null, 1.0], OutputViolationWeight: [1.0, 0.0]) }, "limits.outputViolationWeight[1]");
 
     [Fact]
     public void RefusesRateLimitsThatForbidHoldingTheInput() =>

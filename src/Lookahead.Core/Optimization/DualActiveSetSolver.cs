@@ -1,0 +1,381 @@
+using Lookahead.Core.Numerics;
+using MathNet.Numerics.LinearAlgebra;
+
+namespace Lookahead.Core.Optimization;
+
+/// <summary>
+/// Dual active-set method for strictly convex quadratic programs (Goldfarb &amp; Idnani, "A numerically
+/// stable dual method for solving strictly convex quadratic programs", Math. Programming 27, 1983):
+/// <code>minimise ½xᵀGx + aᵀx  subject to  n_jᵀx = b_j (j &lt; equalities),  n_jᵀx ≥ b_j (otherwise)</code>
+/// It starts from the unconstrained minimiser −G⁻¹a and adds violated constraints one at a time, keeping
+/// every iterate dual feasible, so a point that already satisfies every constraint costs nothing more.
+/// G, its factor and the constraint normals are fixed per instance; a and b change per solve.
+/// The active-set factorisation J₀ᵀN = Q[R; 0] with J₀ = L⁻ᵀ is updated by Givens rotations.
+/// Immutable: any number of threads may solve at once, each with its own <see cref="QpWorkspace"/>.
+/// </summary>
+public sealed class DualActiveSetSolver
+{
+    /// <summary>Relative feasibility tolerance: n_jᵀx − b_j ≥ −tol·(1 + |b_j|) counts as satisfied.</summary>
+    public const double FeasibilityTolerance = 1e-10;
+
+    private readonly CholeskyFactor factor;
+    private readonly double[] initialJ;
+
+    /// <param name="factor">G = LLᵀ.</param>
+    /// <param name="constraints">Normals n_j, one row each; equalities first.</param>
+    /// <param name="equalityCount">How many leading rows are equalities.</param>
+    public DualActiveSetSolver(CholeskyFactor factor, SparseRows constraints, int equalityCount)
+    {
+        if (constraints.ColumnCount != factor.Size)
+        {
+            throw new ArgumentException($"constraints have {constraints.ColumnCount} columns; G is {factor.Size}×{factor.Size}");
+        }
+
+        if (equalityCount < 0 || equalityCount > constraints.RowCount)
+        {
+            throw new ArgumentOutOfRangeException(nameof(equalityCount));
+        }
+
+        this.factor = factor;
+        Constraints = constraints;
+        EqualityCount = equalityCount;
+        int n = factor.Size;
+
+        // J₀ = L⁻ᵀ: column c of J₀ is row c of L⁻¹.
+        var lower = Matrix<double>.Build.Dense(n, n, (i, j) => j <= i ? factor.Lower[(i * n) + j] : 0.0);
+        var inverse = lower.Inverse();
+        initialJ = new double[n * n];
+        for (int c = 0; c < n; c++)
+        {
+            for (int r = 0; r < n; r++)
+            {
+                initialJ[(c * n) + r] = inverse[c, r];
+            }
+        }
+    }
+
+    public int Variables => factor.Size;
+
+    public SparseRows Constraints { get; }
+
+    public int EqualityCount { get; }
+
+    public QpWorkspace CreateWorkspace() => new(Variables, Constraints.RowCount);
+
+    /// <summary>Solves the program for linear term <paramref name="linear"/> (a) and right-hand sides <paramref name="rhs"/> (b).</summary>
+    /// <param name="linear">a; ignored when <paramref name="unconstrained"/> is true.</param>
+    /// <param name="rhs">b, one per constraint; −∞ disables an inequality for this solve.</param>
+    /// <param name="x">On return the solution; on entry the unconstrained minimiser when <paramref name="unconstrained"/> is true.</param>
+    /// <param name="maxIterations">Cap on constraint additions and drops.</param>
+    public QpResult Solve(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace)
+    {
+        int n = Variables;
+        int m = Constraints.RowCount;
+        if (rhs.Length != m || x.Length != n || (!unconstrained && linear.Length != n) || workspace.Variables != n || workspace.Constraints != m)
+        {
+            throw new ArgumentException("vector or workspace sizes do not match the program");
+        }
+
+        var j = workspace.J.AsSpan();
+        var r = workspace.R.AsSpan();
+        var d = workspace.D.AsSpan();
+        var z = workspace.Z.AsSpan();
+        var step = workspace.Step.AsSpan();
+        var u = workspace.Multipliers.AsSpan();
+        var active = workspace.Active.AsSpan();
+        var isActive = workspace.IsActive.AsSpan();
+        initialJ.CopyTo(j);
+        isActive.Clear();
+
+        if (!unconstrained)
+        {
+            linear.CopyTo(x);
+            factor.Solve(x);
+            for (int i = 0; i < n; i++)
+            {
+                x[i] = -x[i];
+            }
+        }
+
+        int q = 0;
+        int iterations = 0;
+        int candidate = -1;
+
+        // Equalities first: each is added with a full step; its multiplier has no sign.
+        for (int e = 0; e < EqualityCount; e++)
+        {
+            double slack = Constraints.Dot(e, x) - rhs[e];
+            Directions(e, q, j, r, d, z, step);
+            double zz = Norm2Tail(d, q, n);
+            if (zz <= 1e-24 * Math.Max(1, Norm2Tail(d, 0, n)))
+            {
+                // Dependent on earlier equalities: fine if consistent, infeasible otherwise.
+                if (Math.Abs(slack) > FeasibilityTolerance * (1 + Math.Abs(rhs[e])))
+                {
+                    return new QpResult(QpStatus.Infeasible, iterations, q, e);
+                }
+
+                continue;
+            }
+
+            double t = -slack / zz;
+            for (int i = 0; i < n; i++)
+            {
+                x[i] += t * z[i];
+            }
+
+            for (int i = 0; i < q; i++)
+            {
+                u[i] -= t * step[i];
+            }
+
+            u[q] = t;
+            AddConstraint(e, ref q, j, r, d, active, isActive);
+            iterations++;
+        }
+
+        while (true)
+        {
+            if (candidate < 0)
+            {
+                candidate = MostViolated(rhs, x, isActive);
+                if (candidate < 0)
+                {
+                    return new QpResult(QpStatus.Optimal, iterations, q, -1);
+                }
+
+                u[q] = 0;
+            }
+
+            if (iterations >= maxIterations)
+            {
+                return new QpResult(QpStatus.IterationLimit, iterations, q, -1);
+            }
+
+            // Step directions for the candidate: primal z in the null space of the active normals, dual r.
+            Directions(candidate, q, j, r, d, z, step);
+            double zz = Norm2Tail(d, q, n);
+            bool primalStep = zz > 1e-24 * Math.Max(1, Norm2Tail(d, 0, n));
+
+            // Partial step: the largest t that keeps every inequality multiplier nonnegative.
+            double partial = double.PositiveInfinity;
+            int blocking = -1;
+            for (int i = 0; i < q; i++)
+            {
+                if (active[i] >= EqualityCount && step[i] > 0)
+                {
+                    double ratio = u[i] / step[i];
+                    if (ratio < partial)
+                    {
+                        partial = ratio;
+                        blocking = i;
+                    }
+                }
+            }
+
+            double slack = Constraints.Dot(candidate, x) - rhs[candidate];
+            double full = primalStep ? -slack / zz : double.PositiveInfinity;
+            double t = Math.Min(partial, full);
+            if (double.IsPositiveInfinity(t))
+            {
+                return new QpResult(QpStatus.Infeasible, iterations, q, candidate);
+            }
+
+            if (primalStep)
+            {
+                for (int i = 0; i < n; i++)
+                {
+                    x[i] += t * z[i];
+                }
+            }
+
+            for (int i = 0; i < q; i++)
+            {
+                u[i] -= t * step[i];
+            }
+
+            u[q] += t;
+            iterations++;
+            if (primalStep && full <= partial)
+            {
+                AddConstraint(candidate, ref q, j, r, d, active, isActive);
+                candidate = -1;
+            }
+            else
+            {
+                // Drop the blocking constraint, keep the candidate's multiplier in the last slot.
+                double candidateMultiplier = u[q];
+                DropConstraint(blocking, ref q, j, r, u, active, isActive);
+                u[q] = candidateMultiplier;
+            }
+        }
+    }
+
+    /// <summary>d = Jᵀn_p; z = Σ_{i≥q} d_i J_i; step = R⁻¹ d[0..q).</summary>
+    private void Directions(int p, int q, Span<double> j, Span<double> r, Span<double> d, Span<double> z, Span<double> step)
+    {
+        int n = Variables;
+        var cols = Constraints.ColumnsOf(p);
+        var vals = Constraints.ValuesOf(p);
+        for (int c = 0; c < n; c++)
+        {
+            var column = j.Slice(c * n, n);
+            double sum = 0;
+            for (int k = 0; k < cols.Length; k++)
+            {
+                sum += column[cols[k]] * vals[k];
+            }
+
+            d[c] = sum;
+        }
+
+        z.Clear();
+        for (int c = q; c < n; c++)
+        {
+            double dc = d[c];
+            if (dc == 0)
+            {
+                continue;
+            }
+
+            var column = j.Slice(c * n, n);
+            for (int i = 0; i < n; i++)
+            {
+                z[i] += dc * column[i];
+            }
+        }
+
+        for (int i = q - 1; i >= 0; i--)
+        {
+            double sum = d[i];
+            for (int k = i + 1; k < q; k++)
+            {
+                sum -= r[(k * n) + i] * step[k];
+            }
+
+            step[i] = sum / r[(i * n) + i];
+        }
+    }
+
+    private int MostViolated(ReadOnlySpan<double> rhs, ReadOnlySpan<double> x, ReadOnlySpan<bool> isActive)
+    {
+        int worst = -1;
+        double worstScaled = 0;
+        for (int c = EqualityCount; c < Constraints.RowCount; c++)
+        {
+            if (isActive[c] || double.IsNegativeInfinity(rhs[c]))
+            {
+                continue;
+            }
+
+            double slack = Constraints.Dot(c, x) - rhs[c];
+            if (slack < -FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
+            {
+                double scaled = slack / Math.Max(Constraints.Norm(c), double.Epsilon);
+                if (scaled < worstScaled)
+                {
+                    worstScaled = scaled;
+                    worst = c;
+                }
+            }
+        }
+
+        return worst;
+    }
+
+    private static double Norm2Tail(ReadOnlySpan<double> d, int from, int to)
+    {
+        double sum = 0;
+        for (int i = from; i < to; i++)
+        {
+            sum += d[i] * d[i];
+        }
+
+        return sum;
+    }
+
+    /// <summary>Rotates d[q+1..n) to zero (columns of J follow) and appends d[0..q] as R's new column.</summary>
+    private void AddConstraint(int p, ref int q, Span<double> j, Span<double> r, Span<double> d, Span<int> active, Span<bool> isActive)
+    {
+        int n = Variables;
+        for (int i = n - 1; i > q; i--)
+        {
+            double a = d[i - 1];
+            double b = d[i];
+            if (b == 0)
+            {
+                continue;
+            }
+
+            double h = Math.Sqrt((a * a) + (b * b));
+            double c = a / h;
+            double s = b / h;
+            d[i - 1] = h;
+            d[i] = 0;
+            RotateColumns(j.Slice((i - 1) * n, n), j.Slice(i * n, n), c, s);
+        }
+
+        var column = r.Slice(q * n, n);
+        for (int i = 0; i <= q; i++)
+        {
+            column[i] = d[i];
+        }
+
+        active[q] = p;
+        isActive[p] = true;
+        q++;
+    }
+
+    /// <summary>Removes active constraint at position k and restores R to triangular form by rotations.</summary>
+    private void DropConstraint(int k, ref int q, Span<double> j, Span<double> r, Span<double> u, Span<int> active, Span<bool> isActive)
+    {
+        int n = Variables;
+        isActive[active[k]] = false;
+        for (int i = k; i < q - 1; i++)
+        {
+            active[i] = active[i + 1];
+            u[i] = u[i + 1];
+            r.Slice((i + 1) * n, n).CopyTo(r.Slice(i * n, n));
+        }
+
+        q--;
+
+        // Columns k … q−1 now have one entry below the diagonal: zero it row by row.
+        for (int i = k; i < q; i++)
+        {
+            double a = r[(i * n) + i];
+            double b = r[(i * n) + i + 1];
+            if (b == 0)
+            {
+                continue;
+            }
+
+            double h = Math.Sqrt((a * a) + (b * b));
+            double c = a / h;
+            double s = b / h;
+            for (int col = i; col < q; col++)
+            {
+                double top = r[(col * n) + i];
+                double bottom = r[(col * n) + i + 1];
+                r[(col * n) + i] = (c * top) + (s * bottom);
+                r[(col * n) + i + 1] = (-s * top) + (c * bottom);
+            }
+
+            RotateColumns(j.Slice(i * n, n), j.Slice((i + 1) * n, n), c, s);
+        }
+
+        // Clear the stale entries left in the removed last column's slot.
+        r.Slice(q * n, n).Clear();
+    }
+
+    private static void RotateColumns(Span<double> first, Span<double> second, double c, double s)
+    {
+        for (int i = 0; i < first.Length; i++)
+        {
+            double a = first[i];
+            double b = second[i];
+            first[i] = (c * a) + (s * b);
+            second[i] = (-s * a) + (c * b);
+        }
+    }
+}
