@@ -1,0 +1,77 @@
+using FsCheck.Xunit;
+using Lookahead.Core.Models;
+using Lookahead.Core.Planning;
+using Lookahead.Core.Tests.Support;
+
+namespace Lookahead.Core.Tests.Planning;
+
+/// <summary>
+/// Properties of limited plans on random models, states and limits (common practice for convex programs):
+/// the answer satisfies KKT; tightening a limit never lowers the optimal cost; soft limits never make a plan infeasible.
+/// </summary>
+public class ConstrainedPropertyTests
+{
+    private sealed record Scenario(ModelDocument Document, PlanRequest Request);
+
+    private static Scenario Random(int seed, double tighten = 1.0)
+    {
+        var random = new Random(seed);
+        int n = random.Next(1, 6);
+        int m = random.Next(1, 3);
+        int p = random.Next(1, n + 1);
+        int horizon = random.Next(2, 16);
+        var (a, b) = TestModels.Random(random, n, m, 0.6 + random.NextDouble() * 0.8);
+        var c = Enumerable.Range(0, p).Select(_ => TestModels.RandomVector(random, n)).ToArray();
+        double[] q = Enumerable.Range(0, p).Select(_ => 0.2 + random.NextDouble()).ToArray();
+        double[] r = Enumerable.Range(0, m).Select(_ => 0.05 + random.NextDouble()).ToArray();
+        double?[] Bound(int size, double sign) => Enumerable.Range(0, size).Select(_ => random.Next(4) == 0 ? (double?)null : sign * (0.2 + random.NextDouble()) * tighten).ToArray();
+        var limits = new LimitsSpec(
+            Bound(m, -1), Bound(m, 1), Bound(m, -1), Bound(m, 1), Bound(p, -1), Bound(p, 1),
+            Enumerable.Range(0, p).Select(_ => 0.1 + random.NextDouble() * 10).ToArray());
+        var document = TestModels.Discrete(a, b, horizon, q, r, TerminalWeightSpec.Stage, c, limits: limits);
+        var request = new PlanRequest(
+            TestModels.RandomVector(random, n, 3),
+            null,
+            random.Next(2) == 0 ? null : Enumerable.Range(0, m).Select(_ => (random.NextDouble() - 0.5) * 0.3).ToArray());
+        return new Scenario(document, request);
+    }
+
+    [Property(MaxTest = 80)]
+    public void LimitedPlanSatisfiesKkt(int seed)
+    {
+        var scenario = Random(seed);
+        var model = ModelCompiler.Compile(scenario.Document, new CompileOptions { SoftLimitLinearWeight = 1e4 });
+        var plan = model.Plan(scenario.Request);
+        if (plan.Status == PlanStatus.Optimal)
+        {
+            Kkt.CheckPlan(model, scenario.Request, plan, 1e4, ConstrainedPlanTests.Slacks(model, plan), 1e-7);
+        }
+    }
+
+    [Property(MaxTest = 80)]
+    public bool SoftLimitsNeverMakeAPlanInfeasible(int seed)
+    {
+        var scenario = Random(seed);
+        var model = ModelCompiler.Compile(scenario.Document);
+        var plan = model.Plan(scenario.Request);
+
+        // Rate limits validated to contain 0 and a previous input inside the window always leave a feasible plan.
+        bool previousInsideWindow = scenario.Request.PreviousInput is null || !model.ConstrainedWithPrevious!.UnreachableFirstMoves(scenario.Request.PreviousInput).Any();
+        return !previousInsideWindow || plan.Status == PlanStatus.Optimal;
+    }
+
+    [Property(MaxTest = 60)]
+    public bool TighteningALimitNeverLowersTheCost(int seed)
+    {
+        var loose = Random(seed, tighten: 1.0);
+        var tight = Random(seed, tighten: 0.6);
+        // Same plant, weights and state (same seed); only the limits shrink. Hard limits only, so the costs compare J alone.
+        ModelDocument HardOnly(ModelDocument d) => d with { Limits = d.Limits! with { OutputMin = null, OutputMax = null, OutputViolationWeight = null } };
+        var looseModel = ModelCompiler.Compile(HardOnly(loose.Document));
+        var tightModel = ModelCompiler.Compile(HardOnly(tight.Document));
+        var request = loose.Request with { PreviousInput = null };
+        var a = looseModel.Plan(request);
+        var b = tightModel.Plan(request);
+        return a.Status != PlanStatus.Optimal || b.Status != PlanStatus.Optimal || b.Cost >= a.Cost - (1e-9 * Math.Max(1, a.Cost));
+    }
+}
