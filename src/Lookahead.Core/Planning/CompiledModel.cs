@@ -150,7 +150,7 @@ public sealed class CompiledModel
         Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
-        var warnings = new List<string>();
+        List<string>? warnings = null;
         if (request.Reference is { } reference)
         {
             DenseKernels.Multiply(targets.StateMap, reference, targetState);
@@ -162,7 +162,7 @@ public sealed class CompiledModel
             plan.Target = MakeTarget(reference, targetState, targetInput, limited);
             if (!plan.Target.ReferenceReached)
             {
-                warnings.Add(limited
+                (warnings ??= []).Add(limited
                     ? "the setpoint cannot be held within the input limits; the plan steers to the closest reachable steady state"
                     : "the setpoint is not an equilibrium the inputs can hold; the plan steers to the closest steady state (least squares)");
             }
@@ -185,12 +185,15 @@ public sealed class CompiledModel
             plan.Status = outcome.Status;
             plan.Iterations = outcome.Iterations;
             plan.ActiveLimits = outcome.ActiveLimits;
-            warnings.AddRange(outcome.Warnings);
+            if (outcome.Warnings.Count > 0)
+            {
+                (warnings ??= []).AddRange(outcome.Warnings);
+            }
             plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput) + outcome.Penalty;
             plan.MaxOutputViolation = constrained.MaxViolation(plan.Outputs, p);
             if (plan.MaxOutputViolation > 1e-9)
             {
-                warnings.Add($"the predicted outputs exceed their soft limits by up to {plan.MaxOutputViolation:g4}: the hard input limits leave no plan that respects them");
+                (warnings ??= []).Add($"the predicted outputs exceed their soft limits by up to {plan.MaxOutputViolation:g4}: the hard input limits leave no plan that respects them");
             }
         }
         else
@@ -202,7 +205,7 @@ public sealed class CompiledModel
             }
         }
 
-        if (warnings.Count > 0)
+        if (warnings is not null)
         {
             plan.Warnings = warnings;
         }
