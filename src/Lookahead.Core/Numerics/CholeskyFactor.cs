@@ -14,14 +14,15 @@ public sealed class CholeskyFactor
     /// <summary>Factors <paramref name="matrix"/>.</summary>
     /// <exception cref="ArgumentException">The matrix is not square or not positive definite.</exception>
     public CholeskyFactor(Matrix<double> matrix)
+        : this(SquareCholesky(matrix))
     {
-        if (matrix.RowCount != matrix.ColumnCount)
-        {
-            throw new ArgumentException("the matrix must be square", nameof(matrix));
-        }
+    }
 
-        var factor = matrix.Cholesky().Factor;
-        Size = matrix.RowCount;
+    /// <summary>Keeps a copy of an existing MathNet factorisation's L (no second factorisation).</summary>
+    public CholeskyFactor(MathNet.Numerics.LinearAlgebra.Factorization.Cholesky<double> cholesky)
+    {
+        var factor = cholesky.Factor;
+        Size = factor.RowCount;
         lower = new double[Size * Size];
         for (int i = 0; i < Size; i++)
         {
@@ -31,6 +32,9 @@ public sealed class CholeskyFactor
             }
         }
     }
+
+    private static MathNet.Numerics.LinearAlgebra.Factorization.Cholesky<double> SquareCholesky(Matrix<double> matrix) =>
+        matrix.RowCount == matrix.ColumnCount ? matrix.Cholesky() : throw new ArgumentException("the matrix must be square", nameof(matrix));
 
     private CholeskyFactor(double[] lower, int size)
     {
@@ -67,6 +71,34 @@ public sealed class CholeskyFactor
 
     /// <summary>L, row-major (upper triangle zero). Read-only view.</summary>
     public ReadOnlySpan<double> Lower => lower;
+
+    /// <summary>(Lᵀ)⁻¹ = (L⁻¹)ᵀ, column-major: column c of the result is row c of L⁻¹. Forward substitution, n³/3 flops.</summary>
+    public double[] InverseTransposeColumnMajor()
+    {
+        int n = Size;
+        var result = new double[n * n];
+        var row = new double[n];
+        for (int c = 0; c < n; c++)
+        {
+            // Row c of L⁻¹ solves xᵀL = e_cᵀ, i.e. Lᵀx = e_c: back substitution, x_i = 0 for i > c.
+            Array.Clear(row);
+            row[c] = 1.0 / lower[(c * n) + c];
+            for (int i = c - 1; i >= 0; i--)
+            {
+                double sum = 0;
+                for (int k = i + 1; k <= c; k++)
+                {
+                    sum += lower[(k * n) + i] * row[k];
+                }
+
+                row[i] = -sum / lower[(i * n) + i];
+            }
+
+            row.CopyTo(result, c * n);
+        }
+
+        return result;
+    }
 
     /// <summary>Solves L y = b in place (y overwrites b).</summary>
     public void SolveLower(Span<double> b)

@@ -75,30 +75,58 @@ public static class DenseKernels
         MultiplyAdd(m, x, y);
     }
 
-    /// <summary>y += Mᵀ x for row-major M (x.Length × y.Length).</summary>
+    /// <summary>
+    /// y += M x for M stored column-major (x.Length columns of y.Length entries each). Each column is one
+    /// vectorised AXPY, so there are no horizontal sums: this is the fast form for the short, wide products
+    /// of a plan (12×12 in a few nanoseconds). Read the same array as row-major to multiply by Mᵀ with
+    /// <see cref="MultiplyAdd"/>.
+    /// </summary>
     /// <exception cref="ArgumentException">Lengths do not match.</exception>
-    public static void MultiplyTransposedAdd(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    public static void MultiplyAddColumns(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
     {
-        int rows = x.Length;
-        int cols = y.Length;
+        int rows = y.Length;
+        int cols = x.Length;
         if (m.Length != rows * cols)
         {
             throw new ArgumentException($"matrix has {m.Length} entries; expected {rows}×{cols}");
         }
 
-        for (int i = 0; i < rows; i++)
+        for (int j = 0; j < cols; j++)
         {
-            double xi = x[i];
-            if (xi == 0)
+            double xj = x[j];
+            if (xj != 0)
             {
-                continue;
+                Axpy(xj, m.Slice(j * rows, rows), y);
+            }
+        }
+    }
+
+    /// <summary>y += a·x, vectorised with fused multiply–add where the hardware has it.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public static void Axpy(double a, ReadOnlySpan<double> x, Span<double> y)
+    {
+        if (x.Length != y.Length)
+        {
+            throw new ArgumentException("x and y must have the same length");
+        }
+
+        int i = 0;
+        if (Vector.IsHardwareAccelerated && x.Length >= Vector<double>.Count)
+        {
+            var av = new Vector<double>(a);
+            var xv = MemoryMarshal.Cast<double, Vector<double>>(x);
+            var yv = MemoryMarshal.Cast<double, Vector<double>>(y);
+            for (int v = 0; v < xv.Length; v++)
+            {
+                yv[v] = Vector.FusedMultiplyAdd(av, xv[v], yv[v]);
             }
 
-            var row = m.Slice(i * cols, cols);
-            for (int j = 0; j < cols; j++)
-            {
-                y[j] += row[j] * xi;
-            }
+            i = xv.Length * Vector<double>.Count;
+        }
+
+        for (; i < x.Length; i++)
+        {
+            y[i] += a * x[i];
         }
     }
 

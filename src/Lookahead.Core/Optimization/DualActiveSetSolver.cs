@@ -1,5 +1,4 @@
 using Lookahead.Core.Numerics;
-using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Optimization;
 
@@ -42,16 +41,7 @@ public sealed class DualActiveSetSolver
         int n = factor.Size;
 
         // J₀ = L⁻ᵀ: column c of J₀ is row c of L⁻¹.
-        var lower = Matrix<double>.Build.Dense(n, n, (i, j) => j <= i ? factor.Lower[(i * n) + j] : 0.0);
-        var inverse = lower.Inverse();
-        initialJ = new double[n * n];
-        for (int c = 0; c < n; c++)
-        {
-            for (int r = 0; r < n; r++)
-            {
-                initialJ[(c * n) + r] = inverse[c, r];
-            }
-        }
+        initialJ = factor.InverseTransposeColumnMajor();
     }
 
     public int Variables => factor.Size;

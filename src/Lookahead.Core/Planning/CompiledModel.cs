@@ -145,7 +145,7 @@ public sealed class CompiledModel
         var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
         Span<double> u = plan.Inputs;
 
-        DenseKernels.MultiplyAdd(gains.Kx, request.State, u);
+        DenseKernels.MultiplyAddColumns(gains.Kx, request.State, u);
         Span<double> targetState = n <= 256 ? stackalloc double[n] : new double[n];
         Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
         targetState.Clear();
@@ -156,9 +156,9 @@ public sealed class CompiledModel
             DenseKernels.Multiply(targets.StateMap, reference, targetState);
             DenseKernels.Multiply(targets.InputMap, reference, targetInput);
             bool limited = targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
-            DenseKernels.MultiplyAdd(gains.Kr, reference, u);
-            DenseKernels.MultiplyAdd(gains.Kxs, targetState, u);
-            DenseKernels.MultiplyAdd(gains.Kus, targetInput, u);
+            DenseKernels.MultiplyAddColumns(gains.Kr, reference, u);
+            DenseKernels.MultiplyAddColumns(gains.Kxs, targetState, u);
+            DenseKernels.MultiplyAddColumns(gains.Kus, targetInput, u);
             plan.Target = MakeTarget(reference, targetState, targetInput, limited);
             if (!plan.Target.ReferenceReached)
             {
@@ -170,7 +170,7 @@ public sealed class CompiledModel
 
         if (request.PreviousInput is { } previous)
         {
-            DenseKernels.MultiplyAdd(gains.Kup, previous, u);
+            DenseKernels.MultiplyAddColumns(gains.Kup, previous, u);
         }
 
         for (int i = 0; i < u.Length; i++)

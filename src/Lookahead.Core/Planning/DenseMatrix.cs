@@ -19,6 +19,9 @@ internal static class DenseMatrix
         return result;
     }
 
+    /// <summary>Column-major copy: column j at j·RowCount. Read as row-major it is the transpose.</summary>
+    public static double[] ColumnMajor(Matrix<double> m) => m.ToColumnMajorArray();
+
     public static double[][] Rows(Matrix<double> m) => m.ToRowArrays();
 
     public static Matrix<double> FromRows(double[][] rows) => Matrix<double>.Build.DenseOfRowArrays(rows);

@@ -6,7 +6,8 @@ namespace Lookahead.Core.Planning;
 /// <summary>
 /// The condensed Hessian for one variant of the problem (with or without the Δu_0 term), its Cholesky
 /// factor, and the precomputed maps from each request-dependent vector to the unconstrained optimum:
-/// U* = −(Kx·x_0 + Kr·r + Kxs·x_s + Kus·u_s + Kup·u_{−1}). All arrays row-major with N·m rows; immutable after construction.
+/// U* = −(Kx·x_0 + Kr·r + Kxs·x_s + Kus·u_s + Kup·u_{−1}). All maps column-major with N·m rows (see
+/// <see cref="Numerics.DenseKernels.MultiplyAddColumns"/>); immutable after construction.
 /// </summary>
 internal sealed class GainSet
 {

@@ -1,3 +1,4 @@
+using Lookahead.Core.Numerics;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Planning;
@@ -8,7 +9,7 @@ internal static class HessianCondition
     /// <summary>Up to this size the eigenvalues are computed exactly; above it, by power iteration.</summary>
     public const int ExactUpTo = 600;
 
-    public static double Compute(Matrix<double> hessian)
+    public static double Compute(Matrix<double> hessian, CholeskyFactor factor)
     {
         if (hessian.RowCount <= ExactUpTo)
         {
@@ -18,9 +19,15 @@ internal static class HessianCondition
         }
 
         // Power iteration on H and, through the factor, on H⁻¹: accurate to a few digits, which is all a warning needs.
-        var cholesky = hessian.Cholesky();
         double largest = PowerIteration(v => hessian * v, hessian.RowCount);
-        double inverseLargest = PowerIteration(v => cholesky.Solve(v), hessian.RowCount);
+        double inverseLargest = PowerIteration(
+            v =>
+            {
+                var copy = v.ToArray();
+                factor.Solve(copy);
+                return Vector<double>.Build.DenseOfArray(copy);
+            },
+            hessian.RowCount);
         return largest * inverseLargest;
     }
 

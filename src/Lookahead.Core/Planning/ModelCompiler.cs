@@ -78,10 +78,10 @@ public static class ModelCompiler
         var stabilisable = SystemProperties.Stabilisable(a, b);
         var detectable = SystemProperties.Detectable(a, qx);
         double openLoopRadius = SystemProperties.SpectralRadius(a);
-        var gainRows = Matrix<double>.Build.Dense(model.InputCount, n, (i, j) => withoutPrevious.Kx[(i * n) + j]);
+        var gainRows = Matrix<double>.Build.Dense(model.InputCount, n, (i, j) => withoutPrevious.Kx[(j * model.Horizon * model.InputCount) + i]);
         var closedLoop = SystemProperties.Eigenvalues(a - (b * gainRows));
         double closedLoopRadius = closedLoop.Select(z => z.Magnitude).DefaultIfEmpty(0).Max();
-        double condition = HessianCondition.Compute(withoutPrevious.Hessian);
+        double condition = HessianCondition.Compute(withoutPrevious.Hessian, withoutPrevious.Factor);
 
         if (closedLoopRadius >= 1)
         {
@@ -124,11 +124,11 @@ public static class ModelCompiler
         Matrix<double> Solve(Matrix<double> rhs) => cholesky.Solve(rhs);
         return new GainSet(
             condensed.Hessian,
-            new CholeskyFactor(condensed.Hessian),
-            DenseMatrix.RowMajor(Solve(condensed.Fx)),
-            DenseMatrix.RowMajor(Solve(condensed.Fr)),
-            DenseMatrix.RowMajor(Solve(condensed.Fxs)),
-            DenseMatrix.RowMajor(Solve(condensed.Fus)),
-            DenseMatrix.RowMajor(Solve(condensed.Fup)));
+            new CholeskyFactor(cholesky),
+            DenseMatrix.ColumnMajor(Solve(condensed.Fx)),
+            DenseMatrix.ColumnMajor(Solve(condensed.Fr)),
+            DenseMatrix.ColumnMajor(Solve(condensed.Fxs)),
+            DenseMatrix.ColumnMajor(Solve(condensed.Fus)),
+            DenseMatrix.ColumnMajor(Solve(condensed.Fup)));
     }
 }

@@ -28,9 +28,10 @@ internal sealed class TrajectoryEvaluator
         n = a.RowCount;
         m = b.ColumnCount;
         p = c.RowCount;
-        this.a = DenseMatrix.RowMajor(a);
-        this.b = DenseMatrix.RowMajor(b);
-        this.c = DenseMatrix.RowMajor(c);
+        // Column-major: A x is a run of AXPYs, and the same arrays read row-major give Aᵀ, Bᵀ, Cᵀ for the adjoint.
+        this.a = DenseMatrix.ColumnMajor(a);
+        this.b = DenseMatrix.ColumnMajor(b);
+        this.c = DenseMatrix.ColumnMajor(c);
         this.outputIsState = outputIsState;
         this.q = DenseMatrix.RowMajor(q);
         this.r = DenseMatrix.RowMajor(r);
@@ -52,15 +53,17 @@ internal sealed class TrajectoryEvaluator
         }
         else
         {
-            DenseKernels.Multiply(c, x, y);
+            y.Clear();
+            DenseKernels.MultiplyAddColumns(c, x, y);
         }
     }
 
     /// <summary>x⁺ = A x + B u.</summary>
     public void Step(ReadOnlySpan<double> x, ReadOnlySpan<double> u, Span<double> next)
     {
-        DenseKernels.Multiply(a, x, next);
-        DenseKernels.MultiplyAdd(b, u, next);
+        next.Clear();
+        DenseKernels.MultiplyAddColumns(a, x, next);
+        DenseKernels.MultiplyAddColumns(b, u, next);
     }
 
     /// <summary>Fills the plan's states and outputs from its inputs and returns J.</summary>
@@ -145,7 +148,7 @@ internal sealed class TrajectoryEvaluator
             var uk = inputs.Slice(k * m, m);
             Difference(uk, targetInput, du);
             DenseKernels.MultiplyAdd(r, du, g);
-            DenseKernels.MultiplyTransposedAdd(b, mu, g);
+            DenseKernels.MultiplyAdd(b, mu, g);
             if (hasRateWeight)
             {
                 if (k > 0 || !previousInput.IsEmpty)
@@ -170,7 +173,7 @@ internal sealed class TrajectoryEvaluator
             {
                 // μ_k = CᵀQ(y_k − r) + Aᵀμ_{k+1}
                 next.Clear();
-                DenseKernels.MultiplyTransposedAdd(a, mu, next);
+                DenseKernels.MultiplyAdd(a, mu, next);
                 Difference(outputs.Slice(k * p, p), reference, dy);
                 DenseKernels.Multiply(q, dy, qdy);
                 if (outputIsState)
@@ -182,7 +185,7 @@ internal sealed class TrajectoryEvaluator
                 }
                 else
                 {
-                    DenseKernels.MultiplyTransposedAdd(c, qdy, next);
+                    DenseKernels.MultiplyAdd(c, qdy, next);
                 }
 
                 next.CopyTo(mu);
