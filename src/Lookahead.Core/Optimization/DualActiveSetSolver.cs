@@ -228,11 +228,7 @@ public sealed class DualActiveSetSolver
                 continue;
             }
 
-            var column = j.Slice(c * n, n);
-            for (int i = 0; i < n; i++)
-            {
-                z[i] += dc * column[i];
-            }
+            DenseKernels.Axpy(dc, j.Slice(c * n, n), z);
         }
 
         for (int i = q - 1; i >= 0; i--)
@@ -358,9 +354,28 @@ public sealed class DualActiveSetSolver
         r.Slice(q * n, n).Clear();
     }
 
+    /// <summary>[first, second] ← [c·first + s·second, −s·first + c·second], vectorised: this is the solver's inner loop.</summary>
     private static void RotateColumns(Span<double> first, Span<double> second, double c, double s)
     {
-        for (int i = 0; i < first.Length; i++)
+        int i = 0;
+        if (System.Numerics.Vector.IsHardwareAccelerated && first.Length >= System.Numerics.Vector<double>.Count)
+        {
+            var cv = new System.Numerics.Vector<double>(c);
+            var sv = new System.Numerics.Vector<double>(s);
+            var fv = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(first);
+            var gv = System.Runtime.InteropServices.MemoryMarshal.Cast<double, System.Numerics.Vector<double>>(second);
+            for (int v = 0; v < fv.Length; v++)
+            {
+                var a = fv[v];
+                var b = gv[v];
+                fv[v] = (cv * a) + (sv * b);
+                gv[v] = (cv * b) - (sv * a);
+            }
+
+            i = fv.Length * System.Numerics.Vector<double>.Count;
+        }
+
+        for (; i < first.Length; i++)
         {
             double a = first[i];
             double b = second[i];
