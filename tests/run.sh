@@ -25,7 +25,7 @@ if [ $build_rc -ne 0 ]; then
 fi
 
 dotnet test Service.sln -c Release --no-build -nologo \
-  --logger "trx;LogFileName=results.trx" --results-directory "$results"
+  --logger "trx;LogFilePrefix=results" --results-directory "$results"
 test_rc=$?
 
 passed=0; failed=0; skipped=0; total=0

@@ -1,0 +1,94 @@
+using Lookahead.Api.Configuration;
+using Lookahead.Api.Contracts;
+using Lookahead.Api.Observability;
+using Lookahead.Api.Problems;
+using Lookahead.Api.Storage;
+using Lookahead.Core.Planning;
+using Lookahead.Core.Validation;
+using Microsoft.AspNetCore.Http.Json;
+using Microsoft.Extensions.Options;
+
+namespace Lookahead.Api.Catalog;
+
+/// <summary>
+/// Registered models: validation, canonical id, durable storage and the compiled-model cache behind one API.
+/// A registration is acknowledged only after the store has committed it.
+/// </summary>
+public sealed class ModelCatalog(
+    IModelStore store,
+    CompiledModelCache cache,
+    IOptions<JsonOptions> json,
+    IOptions<RequestLimitsOptions> limits,
+    LookaheadMetrics metrics,
+    TimeProvider time)
+{
+    public async Task<RegistrationResult> RegisterAsync(ModelDocumentDto dto, CancellationToken cancellationToken)
+    {
+        var normalised = ModelDocumentMapper.Normalise(dto);
+        var errors = new List<ProblemError>();
+        var document = ModelDocumentMapper.ToCore(normalised, errors);
+        if (errors.Count == 0)
+        {
+            errors.AddRange(ModelValidator.Validate(document, limits.Value.ToSizeLimits()).Select(ApiProblems.ToProblemError));
+        }
+
+        if (errors.Count > 0)
+        {
+            metrics.Registrations.WithLabels("rejected").Inc();
+            return RegistrationResult.Rejected(errors);
+        }
+
+        var canonical = CanonicalModel.From(normalised, json.Value.SerializerOptions);
+        if (!cache.TryGet(canonical.Id, out var model))
+        {
+            try
+            {
+                // Compiled from the canonical form, exactly as a restart will recompile it.
+                model = cache.Compile(canonical.Document);
+            }
+            catch (ModelValidationException ex)
+            {
+                metrics.Registrations.WithLabels("rejected").Inc();
+                return RegistrationResult.Rejected(ex.Errors.Select(ApiProblems.ToProblemError).ToList());
+            }
+        }
+
+        var summary = new StoredModelSummary(canonical.Id, canonical.Dto.Name, model.StateCount, model.InputCount, model.OutputCount, model.Horizon, time.GetUtcNow());
+        var outcome = await store.PutIfAbsentAsync(new StoredModel(summary, canonical.Json), cancellationToken);
+        cache.Add(canonical.Id, model);
+        metrics.Registrations.WithLabels(outcome == PutOutcome.Created ? "created" : "existing").Inc();
+        return new RegistrationResult(canonical.Id, model, outcome == PutOutcome.Created, []);
+    }
+
+    /// <summary>The compiled model, from the cache or recompiled from the store; null when no such model is registered.</summary>
+    public Task<CompiledModel?> GetCompiledAsync(string id) =>
+        cache.GetOrCompileAsync(id, async () =>
+        {
+            // Not the caller's token: other requests may be waiting on this same load.
+            var stored = await store.GetAsync(id, CancellationToken.None);
+            return stored is null ? null : CanonicalModel.Parse(stored.Document, json.Value.SerializerOptions).Document;
+        });
+
+    public async Task<(StoredModel Stored, CanonicalModel Canonical)?> GetStoredAsync(string id, CancellationToken cancellationToken)
+    {
+        var stored = await store.GetAsync(id, cancellationToken);
+        return stored is null ? null : (stored, CanonicalModel.Parse(stored.Document, json.Value.SerializerOptions));
+    }
+
+    public Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken) =>
+        store.ListAsync(offset, limit, cancellationToken);
+
+    public async Task<DeleteOutcome> DeleteAsync(string id, CancellationToken cancellationToken)
+    {
+        var outcome = await store.DeleteAsync(id, cancellationToken);
+        if (outcome.Status == DeleteStatus.Deleted)
+        {
+            cache.Remove(id);
+        }
+
+        return outcome;
+    }
+
+    /// <summary>Drops a compiled model from the cache (the stored document stays); the next use recompiles it.</summary>
+    public void Evict(string id) => cache.Remove(id);
+}

@@ -1,0 +1,23 @@
+namespace Lookahead.Api.Contracts;
+
+/// <summary>The optimal input sequence and its predicted trajectory. Anything but status "optimal" comes with warnings.</summary>
+public sealed record PlanResponse(
+    string ModelId,
+    string? Alias,
+    string Status,
+    double[][] Inputs,
+    double[][] States,
+    double[][] Outputs,
+    double Cost,
+    TargetDto? Target,
+    IReadOnlyList<ActiveLimitDto> ActiveLimits,
+    int Iterations,
+    double MaxOutputViolation,
+    IReadOnlyList<string> Warnings,
+    double SolveMicroseconds);
+
+/// <summary>The equilibrium the plan steers to when a reference was given.</summary>
+public sealed record TargetDto(double[] State, double[] Input, double[] Output, bool ReferenceReached, bool LimitedByInputLimits);
+
+/// <summary>A limit the plan presses against: kind (input-min, input-max, input-rate-min, input-rate-max, output-min, output-max), step and index.</summary>
+public sealed record ActiveLimitDto(string Kind, int Step, int Index);

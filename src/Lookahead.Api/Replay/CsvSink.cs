@@ -1,0 +1,141 @@
+using System.Globalization;
+using System.Text;
+using CsvHelper;
+using Lookahead.Api.Mapping;
+
+namespace Lookahead.Api.Replay;
+
+/// <summary>
+/// Pass-through columns, then the first move (one column per input), cost, status and message (the errors of a
+/// bad row, or the warnings of a plan that is not a clean optimum). Numbers are formatted on the planning threads;
+/// CsvHelper quotes and writes, one batch at a time, into a buffer that is then copied to the response.
+/// </summary>
+internal sealed class CsvSink : IReplaySink, IAsyncDisposable
+{
+    private readonly Stream body;
+    private readonly CsvLayout layout;
+    private readonly MemoryStream buffer = new();
+    private readonly CsvWriter csv;
+
+    public CsvSink(Stream body, CsvLayout layout)
+    {
+        this.body = body;
+        this.layout = layout;
+        csv = CsvWriter.Create(buffer, new CsvWriterOptions { NewLine = "\n", FormatProvider = CultureInfo.InvariantCulture, Injection = CsvInjection.None }, leaveOpen: true);
+    }
+
+    public async ValueTask StartAsync(CancellationToken cancellationToken)
+    {
+        foreach (var name in layout.PassThroughNames)
+        {
+            csv.WriteField(name);
+        }
+
+        foreach (var name in layout.MoveNames)
+        {
+            csv.WriteField(name);
+        }
+
+        csv.WriteField(CsvLayout.CostColumn);
+        csv.WriteField(CsvLayout.StatusColumn);
+        csv.WriteField(CsvLayout.MessageColumn);
+        csv.EndRecord();
+        await CopyOutAsync(cancellationToken);
+    }
+
+    public void Format(ReplayRow row, System.Text.Json.Utf8JsonWriter scratch)
+    {
+        if (row.Plan is not { } plan)
+        {
+            return;
+        }
+
+        var move = plan.Input(0);
+        for (int i = 0; i < move.Length; i++)
+        {
+            FormatNumber(row, move[i]);
+        }
+
+        FormatNumber(row, plan.Cost);
+    }
+
+    public async ValueTask WriteAsync(ReplayBatch batch, CancellationToken cancellationToken)
+    {
+        for (int r = 0; r < batch.Count; r++)
+        {
+            var row = batch[r];
+            foreach (int column in layout.PassThrough)
+            {
+                csv.WriteField(row.Field(column));
+            }
+
+            if (row.Plan is { } plan)
+            {
+                foreach (var (start, length) in row.OutputFields)
+                {
+                    csv.WriteField(row.Output.WrittenSpan.Slice(start, length));
+                }
+
+                csv.WriteField(PlanMapper.StatusName(plan.Status));
+                var warnings = PlanMapper.Warnings(plan);
+                csv.WriteField(warnings.Count == 0 ? "" : string.Join("; ", warnings));
+            }
+            else
+            {
+                for (int i = 0; i <= layout.MoveNames.Length; i++)
+                {
+                    csv.WriteField(""u8);
+                }
+
+                csv.WriteField("error");
+                csv.WriteField(Describe(row));
+            }
+
+            csv.EndRecord();
+        }
+
+        await CopyOutAsync(cancellationToken);
+    }
+
+    public ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken) => ValueTask.CompletedTask;
+
+    public async ValueTask DisposeAsync()
+    {
+        await csv.DisposeAsync();
+        await buffer.DisposeAsync();
+    }
+
+    private static void FormatNumber(ReplayRow row, double value)
+    {
+        int start = row.Output.WrittenCount;
+        var span = row.Output.GetSpan(32);
+        value.TryFormat(span, out int written, "R", CultureInfo.InvariantCulture);
+        row.Output.Advance(written);
+        row.OutputFields.Add((start, written));
+    }
+
+    private static string Describe(ReplayRow row)
+    {
+        var text = new StringBuilder($"row {row.Number}: ");
+        for (int i = 0; i < row.Errors.Count; i++)
+        {
+            if (i > 0)
+            {
+                text.Append("; ");
+            }
+
+            var e = row.Errors[i];
+            text.Append(e.Path.Length > 0 ? $"{e.Path}: {e.Reason}" : e.Reason);
+        }
+
+        return text.ToString();
+    }
+
+    private async Task CopyOutAsync(CancellationToken cancellationToken)
+    {
+        csv.Flush();
+        await body.WriteAsync(buffer.GetBuffer().AsMemory(0, (int)buffer.Length), cancellationToken);
+        await body.FlushAsync(cancellationToken);
+        buffer.SetLength(0);
+    }
+}

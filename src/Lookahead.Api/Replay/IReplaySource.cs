@@ -1,0 +1,27 @@
+namespace Lookahead.Api.Replay;
+
+/// <summary>Where replay rows come from (NDJSON, JSON, CSV). Filling is sequential; parsing a filled row may run on any thread.</summary>
+internal interface IReplaySource
+{
+    /// <summary>Fills the batch with the next rows; false when the input has ended and nothing was added.</summary>
+    ValueTask<bool> FillAsync(ReplayBatch batch, CancellationToken cancellationToken);
+
+    /// <summary>Turns the row's raw bytes into its vectors, or records its errors. Thread-safe.</summary>
+    void Parse(ReplayRow row);
+}
+
+/// <summary>Where replay results go. Formatting a row may run on any thread; writing is sequential, in input order.</summary>
+internal interface IReplaySink
+{
+    ValueTask StartAsync(CancellationToken cancellationToken);
+
+    /// <summary>Formats the row's result into its output buffer. Thread-safe.</summary>
+    void Format(ReplayRow row, System.Text.Json.Utf8JsonWriter scratch);
+
+    ValueTask WriteAsync(ReplayBatch batch, CancellationToken cancellationToken);
+
+    ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken);
+}
+
+/// <summary>Totals written at the end where the format has room for them.</summary>
+internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<string> Warnings);

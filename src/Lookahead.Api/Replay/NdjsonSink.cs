@@ -1,0 +1,32 @@
+using System.Buffers;
+using System.IO.Pipelines;
+using System.Text.Json;
+
+namespace Lookahead.Api.Replay;
+
+/// <summary>One result per line, in input order, flushed after every batch.</summary>
+internal sealed class NdjsonSink(PipeWriter writer, ReplayDetail detail) : IReplaySink
+{
+    public ValueTask StartAsync(CancellationToken cancellationToken) => ValueTask.CompletedTask;
+
+    public void Format(ReplayRow row, Utf8JsonWriter scratch)
+    {
+        scratch.Reset(row.Output);
+        ResultJsonWriter.Write(scratch, row, detail);
+        scratch.Flush();
+        row.Output.Write("\n"u8);
+    }
+
+    public async ValueTask WriteAsync(ReplayBatch batch, CancellationToken cancellationToken)
+    {
+        for (int i = 0; i < batch.Count; i++)
+        {
+            writer.Write(batch[i].Output.WrittenSpan);
+        }
+
+        await writer.FlushAsync(cancellationToken);
+    }
+
+    public async ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken) =>
+        await writer.FlushAsync(cancellationToken);
+}

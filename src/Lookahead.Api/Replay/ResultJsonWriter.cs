@@ -1,0 +1,137 @@
+using System.Text.Json;
+using Lookahead.Api.Mapping;
+using Lookahead.Core.Planning;
+
+namespace Lookahead.Api.Replay;
+
+/// <summary>Writes one replay result object; the same shape for JSON and NDJSON replay.</summary>
+internal static class ResultJsonWriter
+{
+    private static readonly JsonEncodedText Row = JsonEncodedText.Encode("row");
+    private static readonly JsonEncodedText Status = JsonEncodedText.Encode("status");
+    private static readonly JsonEncodedText FirstMove = JsonEncodedText.Encode("firstMove");
+    private static readonly JsonEncodedText Cost = JsonEncodedText.Encode("cost");
+    private static readonly JsonEncodedText Inputs = JsonEncodedText.Encode("inputs");
+    private static readonly JsonEncodedText States = JsonEncodedText.Encode("states");
+    private static readonly JsonEncodedText Outputs = JsonEncodedText.Encode("outputs");
+    private static readonly JsonEncodedText Target = JsonEncodedText.Encode("target");
+    private static readonly JsonEncodedText ActiveLimits = JsonEncodedText.Encode("activeLimits");
+    private static readonly JsonEncodedText Iterations = JsonEncodedText.Encode("iterations");
+    private static readonly JsonEncodedText MaxOutputViolation = JsonEncodedText.Encode("maxOutputViolation");
+    private static readonly JsonEncodedText Warnings = JsonEncodedText.Encode("warnings");
+    private static readonly JsonEncodedText Errors = JsonEncodedText.Encode("errors");
+    private static readonly JsonEncodedText Path = JsonEncodedText.Encode("path");
+    private static readonly JsonEncodedText Reason = JsonEncodedText.Encode("reason");
+    private static readonly JsonEncodedText Error = JsonEncodedText.Encode("error");
+    private static readonly JsonEncodedText Optimal = JsonEncodedText.Encode("optimal");
+
+    public static void Write(Utf8JsonWriter writer, ReplayRow row, ReplayDetail detail)
+    {
+        writer.WriteStartObject();
+        writer.WriteNumber(Row, row.Number);
+        if (row.Plan is not { } plan)
+        {
+            writer.WriteString(Status, Error);
+            writer.WriteStartArray(Errors);
+            foreach (var error in row.Errors)
+            {
+                writer.WriteStartObject();
+                writer.WriteString(Path, error.Path);
+                writer.WriteString(Reason, error.Reason);
+                writer.WriteEndObject();
+            }
+
+            writer.WriteEndArray();
+            writer.WriteEndObject();
+            return;
+        }
+
+        if (plan.Status == PlanStatus.Optimal)
+        {
+            writer.WriteString(Status, Optimal);
+        }
+        else
+        {
+            writer.WriteString(Status, PlanMapper.StatusName(plan.Status));
+        }
+
+        if (detail == ReplayDetail.FirstMove)
+        {
+            WriteVector(writer, FirstMove, plan.Input(0));
+            writer.WriteNumber(Cost, plan.Cost);
+        }
+        else
+        {
+            WriteRows(writer, Inputs, plan.Inputs, plan.InputCount);
+            WriteRows(writer, States, plan.States, plan.StateCount);
+            WriteRows(writer, Outputs, plan.Outputs, plan.OutputCount);
+            writer.WriteNumber(Cost, plan.Cost);
+            if (plan.Target is { } target)
+            {
+                writer.WriteStartObject(Target);
+                WriteVector(writer, States, target.State);
+                WriteVector(writer, Inputs, target.Input);
+                WriteVector(writer, Outputs, target.Output);
+                writer.WriteBoolean("referenceReached", target.ReferenceReached);
+                writer.WriteBoolean("limitedByInputLimits", target.LimitedByInputLimits);
+                writer.WriteEndObject();
+            }
+
+            writer.WriteStartArray(ActiveLimits);
+            foreach (var limit in plan.ActiveLimits)
+            {
+                writer.WriteStartObject();
+                writer.WriteString("kind", PlanMapper.LimitKindName(limit.Kind));
+                writer.WriteNumber("step", limit.Step);
+                writer.WriteNumber("index", limit.Index);
+                writer.WriteEndObject();
+            }
+
+            writer.WriteEndArray();
+            writer.WriteNumber(Iterations, plan.Iterations);
+            writer.WriteNumber(MaxOutputViolation, plan.MaxOutputViolation);
+        }
+
+        var warnings = PlanMapper.Warnings(plan);
+        if (warnings.Count > 0 || detail == ReplayDetail.Full)
+        {
+            writer.WriteStartArray(Warnings);
+            foreach (var warning in warnings)
+            {
+                writer.WriteStringValue(warning);
+            }
+
+            writer.WriteEndArray();
+        }
+
+        writer.WriteEndObject();
+    }
+
+    private static void WriteVector(Utf8JsonWriter writer, JsonEncodedText name, ReadOnlySpan<double> values)
+    {
+        writer.WriteStartArray(name);
+        foreach (double v in values)
+        {
+            writer.WriteNumberValue(v);
+        }
+
+        writer.WriteEndArray();
+    }
+
+    private static void WriteRows(Utf8JsonWriter writer, JsonEncodedText name, double[] flat, int columns)
+    {
+        writer.WriteStartArray(name);
+        for (int start = 0; start + columns <= flat.Length && columns > 0; start += columns)
+        {
+            writer.WriteStartArray();
+            foreach (double v in flat.AsSpan(start, columns))
+            {
+                writer.WriteNumberValue(v);
+            }
+
+            writer.WriteEndArray();
+        }
+
+        writer.WriteEndArray();
+    }
+}

@@ -1,0 +1,302 @@
+using Microsoft.Data.Sqlite;
+
+namespace Lookahead.Api.Storage;
+
+/// <summary>
+/// The default store: one SQLite file in WAL mode with synchronous=FULL, so a commit is on disk before the
+/// caller hears about it (a registration survives SIGKILL and power loss alike).
+/// </summary>
+public sealed class SqliteModelStore : IModelStore, IDisposable
+{
+    private const string Schema = """
+        CREATE TABLE IF NOT EXISTS models (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            id TEXT NOT NULL UNIQUE,
+            name TEXT,
+            document BLOB NOT NULL,
+            states INTEGER NOT NULL,
+            inputs INTEGER NOT NULL,
+            outputs INTEGER NOT NULL,
+            horizon INTEGER NOT NULL,
+            registered_at INTEGER NOT NULL);
+        CREATE TABLE IF NOT EXISTS aliases (
+            name TEXT PRIMARY KEY,
+            model_id TEXT NOT NULL REFERENCES models(id),
+            updated_at INTEGER NOT NULL);
+        CREATE INDEX IF NOT EXISTS aliases_model ON aliases(model_id);
+        CREATE TABLE IF NOT EXISTS alias_history (
+            seq INTEGER PRIMARY KEY AUTOINCREMENT,
+            name TEXT NOT NULL,
+            model_id TEXT NOT NULL,
+            set_at INTEGER NOT NULL);
+        CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history(name, seq);
+        """;
+
+    private readonly string connectionString;
+    private readonly SemaphoreSlim initialisation = new(1, 1);
+    private volatile bool initialised;
+
+    public SqliteModelStore(string path)
+    {
+        FilePath = Path.GetFullPath(path);
+        connectionString = new SqliteConnectionStringBuilder
+        {
+            DataSource = FilePath,
+            Mode = SqliteOpenMode.ReadWriteCreate,
+            Pooling = true,
+            DefaultTimeout = 30,
+        }.ToString();
+    }
+
+    public string FilePath { get; }
+
+    public async Task<PutOutcome> PutIfAbsentAsync(StoredModel model, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var command = connection.CreateCommand();
+        command.CommandText = """
+            INSERT INTO models (id, name, document, states, inputs, outputs, horizon, registered_at)
+            VALUES ($id, $name, $document, $states, $inputs, $outputs, $horizon, $at)
+            ON CONFLICT (id) DO NOTHING
+            """;
+        var s = model.Summary;
+        command.Parameters.AddWithValue("$id", s.Id);
+        command.Parameters.AddWithValue("$name", (object?)s.Name ?? DBNull.Value);
+        command.Parameters.AddWithValue("$document", model.Document);
+        command.Parameters.AddWithValue("$states", s.States);
+        command.Parameters.AddWithValue("$inputs", s.Inputs);
+        command.Parameters.AddWithValue("$outputs", s.Outputs);
+        command.Parameters.AddWithValue("$horizon", s.Horizon);
+        command.Parameters.AddWithValue("$at", StoreTime.ToStored(s.RegisteredAt));
+        int inserted = await command.ExecuteNonQueryAsync(cancellationToken);
+        return inserted == 1 ? PutOutcome.Created : PutOutcome.Existing;
+    }
+
+    public async Task<StoredModel?> GetAsync(string id, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var command = connection.CreateCommand();
+        command.CommandText = "SELECT id, name, states, inputs, outputs, horizon, registered_at, document FROM models WHERE id = $id";
+        command.Parameters.AddWithValue("$id", id);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        if (!await reader.ReadAsync(cancellationToken))
+        {
+            return null;
+        }
+
+        return new StoredModel(ReadSummary(reader), (byte[])reader.GetValue(7));
+    }
+
+    public async Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var command = connection.CreateCommand();
+        command.CommandText = """
+            SELECT id, name, states, inputs, outputs, horizon, registered_at FROM models ORDER BY seq LIMIT $limit OFFSET $offset;
+            SELECT COUNT(*) FROM models;
+            """;
+        command.Parameters.AddWithValue("$limit", limit);
+        command.Parameters.AddWithValue("$offset", offset);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        var items = new List<StoredModelSummary>();
+        while (await reader.ReadAsync(cancellationToken))
+        {
+            items.Add(ReadSummary(reader));
+        }
+
+        await reader.NextResultAsync(cancellationToken);
+        await reader.ReadAsync(cancellationToken);
+        return new ModelListing(items, reader.GetInt64(0));
+    }
+
+    public async Task<DeleteOutcome> DeleteAsync(string id, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
+        string? alias = await ScalarAsync<string>(connection, transaction, "SELECT name FROM aliases WHERE model_id = $id ORDER BY name LIMIT 1", ("$id", id), cancellationToken);
+        if (alias is not null)
+        {
+            return new DeleteOutcome(DeleteStatus.ReferencedByAlias, alias);
+        }
+
+        await using var command = connection.CreateCommand();
+        command.Transaction = transaction;
+        command.CommandText = "DELETE FROM models WHERE id = $id";
+        command.Parameters.AddWithValue("$id", id);
+        int deleted = await command.ExecuteNonQueryAsync(cancellationToken);
+        await transaction.CommitAsync(cancellationToken);
+        return deleted == 1 ? DeleteOutcome.Deleted : DeleteOutcome.NotFound;
+    }
+
+    public async Task<AliasOutcome> SetAliasAsync(string name, string modelId, DateTimeOffset at, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+
+        // BEGIN IMMEDIATE: the existence check and the write see the same database.
+        await using (var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken))
+        {
+            if (await ScalarAsync<string>(connection, transaction, "SELECT id FROM models WHERE id = $id", ("$id", modelId), cancellationToken) is null)
+            {
+                return new AliasOutcome(AliasStatus.ModelNotFound, null);
+            }
+
+            string? current = await ScalarAsync<string>(connection, transaction, "SELECT model_id FROM aliases WHERE name = $name", ("$name", name), cancellationToken);
+            if (current == modelId)
+            {
+                await transaction.RollbackAsync(cancellationToken);
+                return new AliasOutcome(AliasStatus.Unchanged, await ReadAliasAsync(connection, name, cancellationToken));
+            }
+
+            await using var command = connection.CreateCommand();
+            command.Transaction = transaction;
+            command.CommandText = """
+                INSERT INTO aliases (name, model_id, updated_at) VALUES ($name, $id, $at)
+                ON CONFLICT (name) DO UPDATE SET model_id = excluded.model_id, updated_at = excluded.updated_at;
+                INSERT INTO alias_history (name, model_id, set_at) VALUES ($name, $id, $at);
+                """;
+            command.Parameters.AddWithValue("$name", name);
+            command.Parameters.AddWithValue("$id", modelId);
+            command.Parameters.AddWithValue("$at", StoreTime.ToStored(at));
+            await command.ExecuteNonQueryAsync(cancellationToken);
+            await transaction.CommitAsync(cancellationToken);
+            var status = current is null ? AliasStatus.Created : AliasStatus.Updated;
+            return new AliasOutcome(status, await ReadAliasAsync(connection, name, cancellationToken));
+        }
+    }
+
+    public async Task<AliasRecord?> GetAliasAsync(string name, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        return await ReadAliasAsync(connection, name, cancellationToken);
+    }
+
+    public async Task<bool> DeleteAliasAsync(string name, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
+        int deleted = await ExecuteAsync(connection, transaction, "DELETE FROM aliases WHERE name = $name", name, cancellationToken);
+        await ExecuteAsync(connection, transaction, "DELETE FROM alias_history WHERE name = $name", name, cancellationToken);
+        await transaction.CommitAsync(cancellationToken);
+        return deleted == 1;
+    }
+
+    private static async Task<int> ExecuteAsync(SqliteConnection connection, SqliteTransaction transaction, string sql, string name, CancellationToken cancellationToken)
+    {
+        await using var command = connection.CreateCommand();
+        command.Transaction = transaction;
+        command.CommandText = sql;
+        command.Parameters.AddWithValue("$name", name);
+        return await command.ExecuteNonQueryAsync(cancellationToken);
+    }
+
+    public void Dispose() => initialisation.Dispose();
+
+    public async Task PingAsync(CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await ScalarAsync<long>(connection, null, "SELECT COUNT(*) FROM models", null, cancellationToken);
+    }
+
+    private static async Task<AliasRecord?> ReadAliasAsync(SqliteConnection connection, string name, CancellationToken cancellationToken)
+    {
+        await using var command = connection.CreateCommand();
+        command.CommandText = """
+            SELECT model_id, updated_at FROM aliases WHERE name = $name;
+            SELECT model_id, set_at FROM alias_history WHERE name = $name ORDER BY seq;
+            """;
+        command.Parameters.AddWithValue("$name", name);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        if (!await reader.ReadAsync(cancellationToken))
+        {
+            return null;
+        }
+
+        string modelId = reader.GetString(0);
+        var updatedAt = StoreTime.FromStored(reader.GetInt64(1));
+        await reader.NextResultAsync(cancellationToken);
+        var history = new List<AliasChange>();
+        while (await reader.ReadAsync(cancellationToken))
+        {
+            history.Add(new AliasChange(reader.GetString(0), StoreTime.FromStored(reader.GetInt64(1))));
+        }
+
+        return new AliasRecord(name, modelId, updatedAt, history);
+    }
+
+    private static StoredModelSummary ReadSummary(SqliteDataReader reader) => new(
+        reader.GetString(0),
+        reader.IsDBNull(1) ? null : reader.GetString(1),
+        reader.GetInt32(2),
+        reader.GetInt32(3),
+        reader.GetInt32(4),
+        reader.GetInt32(5),
+        StoreTime.FromStored(reader.GetInt64(6)));
+
+    private static async Task<T?> ScalarAsync<T>(SqliteConnection connection, SqliteTransaction? transaction, string sql, (string Name, object Value)? parameter, CancellationToken cancellationToken)
+    {
+        await using var command = connection.CreateCommand();
+        command.Transaction = transaction;
+        command.CommandText = sql;
+        if (parameter is { } p)
+        {
+            command.Parameters.AddWithValue(p.Name, p.Value);
+        }
+
+        object? value = await command.ExecuteScalarAsync(cancellationToken);
+        return value is null or DBNull ? default : (T)value;
+    }
+
+    private async Task<SqliteConnection> OpenAsync(CancellationToken cancellationToken)
+    {
+        if (!initialised)
+        {
+            await InitialiseAsync(cancellationToken);
+        }
+
+        var connection = new SqliteConnection(connectionString);
+        try
+        {
+            await connection.OpenAsync(cancellationToken);
+
+            // Per connection: FULL fsyncs the WAL on every commit; foreign keys guard alias targets.
+            await using var command = connection.CreateCommand();
+            command.CommandText = "PRAGMA synchronous = FULL; PRAGMA foreign_keys = ON; PRAGMA busy_timeout = 10000;";
+            await command.ExecuteNonQueryAsync(cancellationToken);
+            return connection;
+        }
+        catch
+        {
+            await connection.DisposeAsync();
+            throw;
+        }
+    }
+
+    private async Task InitialiseAsync(CancellationToken cancellationToken)
+    {
+        await initialisation.WaitAsync(cancellationToken);
+        try
+        {
+            if (initialised)
+            {
+                return;
+            }
+
+            var folder = Path.GetDirectoryName(FilePath);
+            if (!string.IsNullOrEmpty(folder))
+            {
+                Directory.CreateDirectory(folder);
+            }
+
+            await using var connection = new SqliteConnection(connectionString);
+            await connection.OpenAsync(cancellationToken);
+            await using var command = connection.CreateCommand();
+            command.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = FULL;" + Schema;
+            await command.ExecuteNonQueryAsync(cancellationToken);
+            initialised = true;
+        }
+        finally
+        {
+            initialisation.Release();
+        }
+    }
+}
