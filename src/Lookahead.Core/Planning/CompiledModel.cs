@@ -214,6 +214,85 @@ public sealed class CompiledModel
     }
 
     /// <summary>
+    /// The first move u_0 and the optimal cost only — what replay of historian data needs. For a model without
+    /// limits this skips the trajectory: u_0 comes from the first m rows of the gain maps and J* = zᵀMz from
+    /// <see cref="CostForm"/>, a few hundred operations. Limited and ill-conditioned models take the full plan.
+    /// </summary>
+    /// <param name="firstMove">Receives u_0 (m entries).</param>
+    /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
+    public FirstMoveResult FirstMove(PlanRequest request, Span<double> firstMove)
+    {
+        if (firstMove.Length != InputCount)
+        {
+            throw new ArgumentException($"firstMove has {firstMove.Length} entries; expected {InputCount}", nameof(firstMove));
+        }
+
+        if (HasLimits || refine || !IsWellFormed(request))
+        {
+            var plan = Plan(request);
+            plan.Input(0).CopyTo(firstMove);
+            return new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
+        }
+
+        int n = StateCount;
+        int m = InputCount;
+        int rows = DecisionVariables;
+        var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
+        firstMove.Clear();
+        AddFirstRows(gains.Kx, request.State, rows, firstMove);
+        Span<double> targetState = n <= 256 ? stackalloc double[n] : new double[n];
+        Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
+        targetState.Clear();
+        targetInput.Clear();
+        IReadOnlyList<string> warnings = [];
+        if (request.Reference is { } reference)
+        {
+            DenseKernels.Multiply(targets.StateMap, reference, targetState);
+            DenseKernels.Multiply(targets.InputMap, reference, targetInput);
+            AddFirstRows(gains.Kr, reference, rows, firstMove);
+            AddFirstRows(gains.Kxs, targetState, rows, firstMove);
+            AddFirstRows(gains.Kus, targetInput, rows, firstMove);
+            if (!MakeTarget(reference, targetState, targetInput, limited: false).ReferenceReached)
+            {
+                warnings = ["the setpoint is not an equilibrium the inputs can hold; the plan steers to the closest steady state (least squares)"];
+            }
+        }
+
+        if (request.PreviousInput is { } previous)
+        {
+            AddFirstRows(gains.Kup, previous, rows, firstMove);
+        }
+
+        for (int i = 0; i < m; i++)
+        {
+            firstMove[i] = -firstMove[i];
+        }
+
+        double cost = gains.CostForm.Evaluate(request.State, request.PreviousInput, request.Reference, targetState, targetInput);
+        return new FirstMoveResult(PlanStatus.Optimal, Math.Max(cost, 0), warnings);
+    }
+
+    /// <summary>y += (first y.Length rows of the column-major map with <paramref name="rows"/> rows) · x.</summary>
+    private static void AddFirstRows(double[] map, ReadOnlySpan<double> x, int rows, Span<double> y)
+    {
+        for (int j = 0; j < x.Length; j++)
+        {
+            if (x[j] != 0)
+            {
+                DenseKernels.Axpy(x[j], map.AsSpan(j * rows, y.Length), y);
+            }
+        }
+    }
+
+    /// <summary>The same test as <see cref="ValidateRequest"/> without building an error list.</summary>
+    private bool IsWellFormed(PlanRequest request)
+    {
+        static bool Ok(double[]? v, int size, bool required) =>
+            v is null ? !required : v.Length == size && Array.TrueForAll(v, double.IsFinite);
+        return request is not null && Ok(request.State, StateCount, true) && Ok(request.Reference, OutputCount, false) && Ok(request.PreviousInput, InputCount, false);
+    }
+
+    /// <summary>
     /// One step of iterative refinement, U ← U − H⁻¹g with g the adjoint gradient on the true trajectory.
     /// Only for ill-conditioned models (strongly unstable plants over long horizons), where the condensed
     /// solve alone loses digits in proportion to the condition number.

@@ -10,7 +10,8 @@ namespace Lookahead.Core.Planning;
 internal static class Condensing
 {
     /// <summary>The Hessian and the gradient maps f = Fx·x_0 + Fr·r + Fxs·x_s + Fus·u_s + Fup·u_{−1} (each N·m rows).</summary>
-    public sealed record Result(Matrix<double> Hessian, Matrix<double> Fx, Matrix<double> Fr, Matrix<double> Fxs, Matrix<double> Fus, Matrix<double> Fup);
+    /// <param name="FreeCost">J at U = 0 as a quadratic form zᵀM₀z in z = [x_0; u_{−1}; r; x_s; u_s] (see <see cref="CostForm"/>).</param>
+    public sealed record Result(Matrix<double> Hessian, Matrix<double> Fx, Matrix<double> Fr, Matrix<double> Fxs, Matrix<double> Fus, Matrix<double> Fup, Matrix<double> FreeCost);
 
     public static Result Build(
         Matrix<double> a,
@@ -48,6 +49,9 @@ internal static class Condensing
             v = qx + a.TransposeThisAndMultiply(v * a);
             z[l] = v * b;
         }
+
+        // Cost-to-go of the free response from x_0: CᵀQC + AᵀV_0A.
+        var freeStateWeight = qx + a.TransposeThisAndMultiply(v * a);
 
         var hessian = Matrix<double>.Build.Dense(size, size);
         for (int l = 0; l < horizon; l++)
@@ -87,8 +91,14 @@ internal static class Condensing
         var fup = Matrix<double>.Build.Dense(size, m);
         var ctq = c.TransposeThisAndMultiply(q);
         var aPower = a;
+        var aToTheN = a;
         for (int j = 0; j < horizon; j++)
         {
+            if (j == horizon - 1)
+            {
+                aToTheN = aPower;
+            }
+
             fx.SetSubMatrix(j * m, 0, z[j].TransposeThisAndMultiply(aPower));
             aPower = a * aPower;
 
@@ -107,7 +117,15 @@ internal static class Condensing
             fup.SetSubMatrix(0, 0, -s);
         }
 
-        return new Result(hessian, fx, fr, fxs, fus, fup);
+        // Σ_{k=0}^{N−1} (CA^k)ᵀQ by Horner's rule: Y ← CᵀQ + AᵀY.
+        var referenceCross = ctq.Clone();
+        for (int k = 1; k < horizon; k++)
+        {
+            referenceCross = ctq + a.TransposeThisAndMultiply(referenceCross);
+        }
+
+        var free = CostForm.Assemble(n, m, outputs, freeStateWeight, -referenceCross, q * horizon, -aToTheN.TransposeThisAndMultiply(p), p, r * horizon, withPreviousInput ? s : null);
+        return new Result(hessian, fx, fr, fxs, fus, fup, free);
     }
 
     private static void AddBlock(Matrix<double> target, int blockRow, int blockColumn, int m, Matrix<double> block, double scale)

@@ -11,8 +11,9 @@ namespace Lookahead.Core.Planning;
 /// </summary>
 internal sealed class GainSet
 {
-    public GainSet(Matrix<double> hessian, CholeskyFactor factor, double[] kx, double[] kr, double[] kxs, double[] kus, double[] kup)
+    public GainSet(Matrix<double> hessian, CholeskyFactor factor, double[] kx, double[] kr, double[] kxs, double[] kus, double[] kup, CostForm costForm)
     {
+        CostForm = costForm;
         Hessian = hessian;
         Factor = factor;
         Kx = kx;
@@ -28,6 +29,9 @@ internal sealed class GainSet
     /// <summary>Lower-triangular L with H = LLᵀ.</summary>
     public CholeskyFactor Factor { get; }
 
+    /// <summary>J* as a quadratic form of the request, for first-move-only answers.</summary>
+    public CostForm CostForm { get; }
+
     public double[] Kx { get; }
 
     public double[] Kr { get; }
@@ -38,5 +42,5 @@ internal sealed class GainSet
 
     public double[] Kup { get; }
 
-    public long Bytes => sizeof(double) * ((2L * Hessian.RowCount * Hessian.ColumnCount) + Kx.Length + Kr.Length + Kxs.Length + Kus.Length + Kup.Length);
+    public long Bytes => sizeof(double) * ((2L * Hessian.RowCount * Hessian.ColumnCount) + Kx.Length + Kr.Length + Kxs.Length + Kus.Length + Kup.Length + ((long)CostForm.Size * CostForm.Size));
 }

@@ -121,14 +121,20 @@ public static class ModelCompiler
         }
 
         var cholesky = condensed.Hessian.Cholesky();
-        Matrix<double> Solve(Matrix<double> rhs) => cholesky.Solve(rhs);
+        var maps = condensed.Fx.Append(condensed.Fr).Append(condensed.Fxs).Append(condensed.Fus).Append(condensed.Fup);
+        var gains = cholesky.Solve(maps);
+        int n = a.RowCount;
+        int m = b.ColumnCount;
+        int p = model.C.RowCount;
+        double[] Columns(int from, int count) => DenseMatrix.ColumnMajor(gains.SubMatrix(0, gains.RowCount, from, count));
         return new GainSet(
             condensed.Hessian,
             new CholeskyFactor(cholesky),
-            DenseMatrix.ColumnMajor(Solve(condensed.Fx)),
-            DenseMatrix.ColumnMajor(Solve(condensed.Fr)),
-            DenseMatrix.ColumnMajor(Solve(condensed.Fxs)),
-            DenseMatrix.ColumnMajor(Solve(condensed.Fus)),
-            DenseMatrix.ColumnMajor(Solve(condensed.Fup)));
+            Columns(0, n),
+            Columns(n, p),
+            Columns(n + p, n),
+            Columns(n + p + n, m),
+            Columns(n + p + n + m, m),
+            new CostForm(condensed.FreeCost, maps, gains, n, m, p));
     }
 }

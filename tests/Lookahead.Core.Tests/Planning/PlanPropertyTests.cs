@@ -98,4 +98,18 @@ public class PlanPropertyTests
         double scale = 1 + u1.Concat(u2).Select(Math.Abs).Max() * (1 + Math.Abs(alpha));
         return u.Select((v, i) => Math.Abs(v - ((alpha * u1[i]) + u2[i]))).All(e => e <= 1e-9 * scale);
     }
+
+    [Property(MaxTest = 60)]
+    public bool FirstMovePathAgreesWithTheFullPlan(int seed)
+    {
+        var (model, random) = RandomModel(seed);
+        var request = RandomRequest(model, random);
+        var plan = model.Plan(request);
+        var u0 = new double[model.InputCount];
+        var quick = model.FirstMove(request, u0);
+        double scale = Math.Max(1, plan.Inputs.Select(Math.Abs).Max());
+        return quick.Status == plan.Status
+            && u0.Select((v, i) => Math.Abs(v - plan.Inputs[i])).All(e => e <= 1e-9 * scale)
+            && Math.Abs(quick.Cost - plan.Cost) <= 1e-9 * Math.Max(1, plan.Cost);
+    }
 }

@@ -34,6 +34,13 @@ public class UnconstrainedPlanTests
         }
 
         Assert.Equal(PlanStatus.Optimal, plan.Status);
+
+        // The first-move path (no trajectory, cost as a quadratic form) must give the same u_0 and J.
+        var request = new PlanRequest(c.GetProperty("state").Vector(), c.OptionalVector("reference"), c.OptionalVector("previousInput"));
+        var firstMove = new double[model.InputCount];
+        var quick = model.FirstMove(request, firstMove);
+        Assertions.Close(c.GetProperty("inputs").Matrix()[0], firstMove, 1e-9, name + ".firstMove");
+        Assertions.CloseScalar(c.GetProperty("cost").GetDouble(), quick.Cost, 1e-9, name + ".firstMoveCost");
     }
 
     // Common practice (Bellman's principle with the infinite-horizon cost-to-go as terminal weight):
