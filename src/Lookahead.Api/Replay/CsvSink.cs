@@ -43,20 +43,22 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
         await CopyOutAsync(cancellationToken);
     }
 
+    /// <summary>CSV carries the first move only.</summary>
+    public bool NeedsFullPlan => false;
+
     public void Format(ReplayRow row, System.Text.Json.Utf8JsonWriter scratch)
     {
-        if (row.Plan is not { } plan)
+        if (row.Outcome is not { } outcome)
         {
             return;
         }
 
-        var move = plan.Input(0);
-        for (int i = 0; i < move.Length; i++)
+        foreach (double u in row.FirstMove)
         {
-            FormatNumber(row, move[i]);
+            FormatNumber(row, u);
         }
 
-        FormatNumber(row, plan.Cost);
+        FormatNumber(row, outcome.Cost);
     }
 
     public async ValueTask WriteAsync(ReplayBatch batch, CancellationToken cancellationToken)
@@ -69,15 +71,15 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
                 csv.WriteField(row.Field(column));
             }
 
-            if (row.Plan is { } plan)
+            if (row.Outcome is { } outcome)
             {
                 foreach (var (start, length) in row.OutputFields)
                 {
                     csv.WriteField(row.Output.WrittenSpan.Slice(start, length));
                 }
 
-                csv.WriteField(PlanMapper.StatusName(plan.Status));
-                var warnings = PlanMapper.Warnings(plan);
+                csv.WriteField(PlanMapper.StatusName(outcome.Status));
+                var warnings = row.Warnings;
                 csv.WriteField(warnings.Count == 0 ? "" : string.Join("; ", warnings));
             }
             else

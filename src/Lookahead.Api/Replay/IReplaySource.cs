@@ -15,6 +15,9 @@ internal interface IReplaySink
 {
     ValueTask StartAsync(CancellationToken cancellationToken);
 
+    /// <summary>True when rows need every field of a plan; otherwise the cheaper first-move path serves them.</summary>
+    bool NeedsFullPlan { get; }
+
     /// <summary>Formats the row's result into its output buffer. Thread-safe.</summary>
     void Format(ReplayRow row, System.Text.Json.Utf8JsonWriter scratch);
 

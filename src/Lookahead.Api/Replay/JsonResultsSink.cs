@@ -10,6 +10,8 @@ namespace Lookahead.Api.Replay;
 /// </summary>
 internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<ReplayDetail> detail, Func<IReadOnlyList<string>> sourceWarnings) : IReplaySink
 {
+    public bool NeedsFullPlan => detail() == ReplayDetail.Full;
+
     private bool first = true;
 
     public ValueTask StartAsync(CancellationToken cancellationToken)

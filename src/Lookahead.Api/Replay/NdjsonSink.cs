@@ -9,6 +9,8 @@ internal sealed class NdjsonSink(PipeWriter writer, ReplayDetail detail) : IRepl
 {
     public ValueTask StartAsync(CancellationToken cancellationToken) => ValueTask.CompletedTask;
 
+    public bool NeedsFullPlan => detail == ReplayDetail.Full;
+
     public void Format(ReplayRow row, Utf8JsonWriter scratch)
     {
         scratch.Reset(row.Output);

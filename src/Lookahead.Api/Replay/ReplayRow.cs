@@ -15,6 +15,7 @@ internal sealed class ReplayRow
         State = new double[n];
         Reference = new double[p];
         PreviousInput = new double[m];
+        FirstMove = new double[m];
     }
 
     public long Number { get; private set; }
@@ -43,7 +44,19 @@ internal sealed class ReplayRow
     /// <summary>Stops the rest of the body from being read (set by the source for a broken stream).</summary>
     public bool Fatal { get; set; }
 
+    /// <summary>The full plan, only when the sink asked for every field.</summary>
     public Plan? Plan { get; set; }
+
+    /// <summary>u_0 of a planned row (filled for every detail level).</summary>
+    public double[] FirstMove { get; }
+
+    /// <summary>Status, cost and warnings of a planned row; null for a row that failed.</summary>
+    public FirstMoveResult? Outcome { get; set; }
+
+    /// <summary>The warnings to show: the plan's own, or a sentence for a status that came without one.</summary>
+    public IReadOnlyList<string> Warnings =>
+        Outcome is not { } outcome ? [] :
+        outcome.Status == PlanStatus.Optimal || outcome.Warnings.Count > 0 ? outcome.Warnings : [Mapping.PlanMapper.StatusWarning(outcome.Status)];
 
     public ArrayBufferWriter<byte> Output { get; } = new(256);
 
@@ -60,6 +73,7 @@ internal sealed class ReplayRow
         Errors.Clear();
         Fatal = false;
         Plan = null;
+        Outcome = null;
         Output.ResetWrittenCount();
         OutputFields.Clear();
     }

@@ -50,7 +50,7 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
                     source.Parse(row);
                     if (row.Errors.Count == 0)
                     {
-                        Solve(model, row, duration);
+                        Solve(model, row, sink.NeedsFullPlan, duration);
                     }
 
                     sink.Format(row, scratch);
@@ -61,7 +61,7 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
             await sink.WriteAsync(batch, cancellationToken);
             for (int i = 0; i < batch.Count; i++)
             {
-                if (batch[i].Plan is null)
+                if (batch[i].Outcome is null)
                 {
                     failed++;
                 }
@@ -78,12 +78,25 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
         return summary;
     }
 
-    private static void Solve(CompiledModel model, ReplayRow row, Prometheus.Histogram.Child duration)
+    private static void Solve(CompiledModel model, ReplayRow row, bool fullPlan, Prometheus.Histogram.Child duration)
     {
         long started = Stopwatch.GetTimestamp();
         try
         {
-            row.Plan = model.Plan(new PlanRequest(row.State, row.HasReference ? row.Reference : null, row.HasPreviousInput ? row.PreviousInput : null));
+            var request = new PlanRequest(row.State, row.HasReference ? row.Reference : null, row.HasPreviousInput ? row.PreviousInput : null);
+            if (fullPlan)
+            {
+                var plan = model.Plan(request);
+                row.Plan = plan;
+                plan.Input(0).CopyTo(row.FirstMove);
+                row.Outcome = new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
+            }
+            else
+            {
+                // Historians mostly want u_0: the first-move path skips the trajectory when the model allows it.
+                row.Outcome = model.FirstMove(request, row.FirstMove);
+            }
+
             duration.Observe(Stopwatch.GetElapsedTime(started).TotalSeconds);
         }
         catch (ModelValidationException ex)

@@ -29,7 +29,7 @@ internal static class ResultJsonWriter
     {
         writer.WriteStartObject();
         writer.WriteNumber(Row, row.Number);
-        if (row.Plan is not { } plan)
+        if (row.Outcome is not { } outcome)
         {
             writer.WriteString(Status, Error);
             writer.WriteStartArray(Errors);
@@ -46,19 +46,19 @@ internal static class ResultJsonWriter
             return;
         }
 
-        if (plan.Status == PlanStatus.Optimal)
+        if (outcome.Status == PlanStatus.Optimal)
         {
             writer.WriteString(Status, Optimal);
         }
         else
         {
-            writer.WriteString(Status, PlanMapper.StatusName(plan.Status));
+            writer.WriteString(Status, PlanMapper.StatusName(outcome.Status));
         }
 
-        if (detail == ReplayDetail.FirstMove)
+        if (detail == ReplayDetail.FirstMove || row.Plan is not { } plan)
         {
-            WriteVector(writer, FirstMove, plan.Input(0));
-            writer.WriteNumber(Cost, plan.Cost);
+            WriteVector(writer, FirstMove, row.FirstMove);
+            writer.WriteNumber(Cost, outcome.Cost);
         }
         else
         {
@@ -92,7 +92,7 @@ internal static class ResultJsonWriter
             writer.WriteNumber(MaxOutputViolation, plan.MaxOutputViolation);
         }
 
-        var warnings = PlanMapper.Warnings(plan);
+        var warnings = row.Warnings;
         if (warnings.Count > 0 || detail == ReplayDetail.Full)
         {
             writer.WriteStartArray(Warnings);
