@@ -34,6 +34,12 @@ public static class OpenApiExtensions
                     Matrix(),
                 ],
             });
+            o.MapType<TrajectoryRows>(() => new OpenApiSchema
+            {
+                Description = "Rows of a trajectory (one row per step); numbers carry 15 significant digits.",
+                Type = JsonSchemaType.Array,
+                Items = Vector(),
+            });
             o.SupportNonNullableReferenceTypes();
             o.OperationFilter<SvgResponseFilter>();
         });
