@@ -42,10 +42,7 @@ public static class AliasesEndpoints
             .WithSummary("Plan with the model the alias points at now; the answer names that model")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new Composition.SvgAlternativeMetadata())
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
-            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+            .ProducesBodyProblemsForModel();
 
         return group;
     }

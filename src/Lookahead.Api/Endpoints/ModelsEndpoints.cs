@@ -26,9 +26,7 @@ public static class ModelsEndpoints
             .WithName("RegisterModel")
             .WithSummary("Register a plant-and-cost model; its id is the SHA-256 of its canonical form")
             .Accepts<ModelDocumentDto>("application/json")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+            .ProducesBodyProblems();
 
         group.MapGet("", ListAsync)
             .WithName("ListModels")

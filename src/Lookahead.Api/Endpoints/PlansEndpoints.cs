@@ -24,10 +24,7 @@ public static class PlansEndpoints
             .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new Composition.SvgAlternativeMetadata())
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
-            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+            .ProducesBodyProblemsForModel();
 
         return group;
     }

@@ -30,10 +30,7 @@ public static class ReplayEndpoints
             .WithSummary("Plan every state of a JSON, NDJSON or CSV upload; results stream back in input order")
             .Accepts<ReplayRequest>(JsonContentType, NdjsonContentType, CsvContentType)
             .Produces<ReplayResponse>(StatusCodes.Status200OK, JsonContentType, NdjsonContentType, CsvContentType)
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
-            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+            .ProducesBodyProblemsForModel();
 
         return group;
     }

@@ -25,10 +25,7 @@ public static class SimulationEndpoints
             .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
             .Accepts<SimulationRequestDto>("application/json")
             .WithMetadata(new Composition.SvgAlternativeMetadata())
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
-            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+            .ProducesBodyProblemsForModel();
 
         return group;
     }
