@@ -56,7 +56,7 @@ public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
             return null;
         }
 
-        return new StoredModel(ReadSummary(reader), reader.GetFieldValue<byte[]>(7));
+        return new StoredModel(StoredModelSummary.Read(reader), reader.GetFieldValue<byte[]>(7));
     }
 
     public async Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken)
@@ -70,7 +70,7 @@ public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
             await using var reader = await command.ExecuteReaderAsync(cancellationToken);
             while (await reader.ReadAsync(cancellationToken))
             {
-                items.Add(ReadSummary(reader));
+                items.Add(StoredModelSummary.Read(reader));
             }
         }
 
@@ -248,15 +248,6 @@ public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
 
         return new AliasRecord(name, modelId, updatedAt, history);
     }
-
-    private static StoredModelSummary ReadSummary(NpgsqlDataReader reader) => new(
-        reader.GetString(0),
-        reader.IsDBNull(1) ? null : reader.GetString(1),
-        reader.GetInt32(2),
-        reader.GetInt32(3),
-        reader.GetInt32(4),
-        reader.GetInt32(5),
-        StoreTime.FromStored(reader.GetInt64(6)));
 
     private async Task EnsureSchemaAsync(CancellationToken cancellationToken)
     {

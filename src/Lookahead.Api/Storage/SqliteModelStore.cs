@@ -84,7 +84,7 @@ public sealed class SqliteModelStore : IModelStore, IDisposable
             return null;
         }
 
-        return new StoredModel(ReadSummary(reader), (byte[])reader.GetValue(7));
+        return new StoredModel(StoredModelSummary.Read(reader), (byte[])reader.GetValue(7));
     }
 
     public async Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken)
@@ -101,7 +101,7 @@ public sealed class SqliteModelStore : IModelStore, IDisposable
         var items = new List<StoredModelSummary>();
         while (await reader.ReadAsync(cancellationToken))
         {
-            items.Add(ReadSummary(reader));
+            items.Add(StoredModelSummary.Read(reader));
         }
 
         await reader.NextResultAsync(cancellationToken);
@@ -222,15 +222,6 @@ public sealed class SqliteModelStore : IModelStore, IDisposable
 
         return new AliasRecord(name, modelId, updatedAt, history);
     }
-
-    private static StoredModelSummary ReadSummary(SqliteDataReader reader) => new(
-        reader.GetString(0),
-        reader.IsDBNull(1) ? null : reader.GetString(1),
-        reader.GetInt32(2),
-        reader.GetInt32(3),
-        reader.GetInt32(4),
-        reader.GetInt32(5),
-        StoreTime.FromStored(reader.GetInt64(6)));
 
     private static async Task<T?> ScalarAsync<T>(SqliteConnection connection, SqliteTransaction? transaction, string sql, (string Name, object Value)? parameter, CancellationToken cancellationToken)
     {
