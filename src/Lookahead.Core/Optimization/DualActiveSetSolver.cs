@@ -120,7 +120,7 @@ public sealed class DualActiveSetSolver
             }
 
             u[q] = t;
-            AddConstraint(e, ref q, j, r, d, active, isActive);
+            AddConstraint(e, ref q, j, r, d, active, isActive, z);
             iterations++;
         }
 
@@ -188,7 +188,7 @@ public sealed class DualActiveSetSolver
             iterations++;
             if (primalStep && full <= partial)
             {
-                AddConstraint(candidate, ref q, j, r, d, active, isActive);
+                AddConstraint(candidate, ref q, j, r, d, active, isActive, z);
                 candidate = -1;
             }
             else
@@ -280,25 +280,51 @@ public sealed class DualActiveSetSolver
         return sum;
     }
 
-    /// <summary>Rotates d[q+1..n) to zero (columns of J follow) and appends d[0..q] as R's new column.</summary>
-    private void AddConstraint(int p, ref int q, Span<double> j, Span<double> r, Span<double> d, Span<int> active, Span<bool> isActive)
+    /// <summary>
+    /// Zeroes d[q+1..n) with one Householder reflection applied to columns q … n−1 of J (4n(n−q) flops, against
+    /// 6n(n−q) for a chain of Givens rotations), then appends d[0..q] as R's new column.
+    /// </summary>
+    private void AddConstraint(int p, ref int q, Span<double> j, Span<double> r, Span<double> d, Span<int> active, Span<bool> isActive, Span<double> scratch)
     {
         int n = Variables;
-        for (int i = n - 1; i > q; i--)
+        double tail = 0;
+        for (int i = q + 1; i < n; i++)
         {
-            double a = d[i - 1];
-            double b = d[i];
-            if (b == 0)
+            tail += d[i] * d[i];
+        }
+
+        if (tail > 0)
+        {
+            double head = d[q];
+            double norm = Math.Sqrt((head * head) + tail);
+            double alpha = head > 0 ? -norm : norm;
+            double v0 = head - alpha;
+            double beta = 1.0 / (norm * (norm + Math.Abs(head))); // 2 / vᵀv with v = [v0, d_{q+1}, …]
+
+            // w = J₂v, then J₂ ← J₂ − β w vᵀ.
+            var w = scratch[..n];
+            w.Clear();
+            DenseKernels.Axpy(v0, j.Slice(q * n, n), w);
+            for (int c = q + 1; c < n; c++)
             {
-                continue;
+                if (d[c] != 0)
+                {
+                    DenseKernels.Axpy(d[c], j.Slice(c * n, n), w);
+                }
             }
 
-            double h = Math.Sqrt((a * a) + (b * b));
-            double c = a / h;
-            double s = b / h;
-            d[i - 1] = h;
-            d[i] = 0;
-            RotateColumns(j.Slice((i - 1) * n, n), j.Slice(i * n, n), c, s);
+            DenseKernels.Axpy(-beta * v0, w, j.Slice(q * n, n));
+            for (int c = q + 1; c < n; c++)
+            {
+                if (d[c] != 0)
+                {
+                    DenseKernels.Axpy(-beta * d[c], w, j.Slice(c * n, n));
+                }
+
+                d[c] = 0;
+            }
+
+            d[q] = alpha;
         }
 
         var column = r.Slice(q * n, n);
