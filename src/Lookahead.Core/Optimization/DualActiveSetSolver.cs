@@ -281,10 +281,11 @@ public sealed class DualActiveSetSolver
     }
 
     /// <summary>
-    /// Zeroes d[q+1..n) with one Householder reflection applied to columns q … n−1 of J (4n(n−q) flops, against
-    /// 6n(n−q) for a chain of Givens rotations), then appends d[0..q] as R's new column.
+    /// Zeroes d[q+1..n) with one Householder reflection applied to columns q … n−1 of J (2n(n−q) flops given the
+    /// step direction z = J₂d₂ just computed, against 6n(n−q) for a chain of Givens rotations), then appends d[0..q]
+    /// as R's new column. <paramref name="directionZ"/> must be that z; it is overwritten.
     /// </summary>
-    private void AddConstraint(int p, ref int q, Span<double> j, Span<double> r, Span<double> d, Span<int> active, Span<bool> isActive, Span<double> scratch)
+    private void AddConstraint(int p, ref int q, Span<double> j, Span<double> r, Span<double> d, Span<int> active, Span<bool> isActive, Span<double> directionZ)
     {
         int n = Variables;
         double tail = 0;
@@ -301,17 +302,10 @@ public sealed class DualActiveSetSolver
             double v0 = head - alpha;
             double beta = 1.0 / (norm * (norm + Math.Abs(head))); // 2 / vᵀv with v = [v0, d_{q+1}, …]
 
-            // w = J₂v, then J₂ ← J₂ − β w vᵀ.
-            var w = scratch[..n];
-            w.Clear();
-            DenseKernels.Axpy(v0, j.Slice(q * n, n), w);
-            for (int c = q + 1; c < n; c++)
-            {
-                if (d[c] != 0)
-                {
-                    DenseKernels.Axpy(d[c], j.Slice(c * n, n), w);
-                }
-            }
+            // w = J₂v. Directions left z = J₂d₂, and v differs from d₂ only in its first entry (v0 = d_q − α),
+            // so w = z − α·J_q: no second pass over J₂. Then J₂ ← J₂ − β w vᵀ.
+            var w = directionZ;
+            DenseKernels.Axpy(-alpha, j.Slice(q * n, n), w);
 
             DenseKernels.Axpy(-beta * v0, w, j.Slice(q * n, n));
             for (int c = q + 1; c < n; c++)
