@@ -132,10 +132,9 @@ public sealed class CompiledModel
     /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
     public Plan Plan(PlanRequest request)
     {
-        var errors = ValidateRequest(request);
-        if (errors.Count > 0)
+        if (!IsWellFormed(request))
         {
-            throw new ModelValidationException(errors);
+            throw new ModelValidationException(ValidateRequest(request));
         }
 
         int n = StateCount;

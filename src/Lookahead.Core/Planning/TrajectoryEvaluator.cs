@@ -61,9 +61,7 @@ internal sealed class TrajectoryEvaluator
     /// <summary>x⁺ = A x + B u.</summary>
     public void Step(ReadOnlySpan<double> x, ReadOnlySpan<double> u, Span<double> next)
     {
-        next.Clear();
-        DenseKernels.MultiplyAddColumns(a, x, next);
-        DenseKernels.MultiplyAddColumns(b, u, next);
+        DenseKernels.MultiplyColumns(a, x, b, u, next);
     }
 
     /// <summary>Fills the plan's states and outputs from its inputs and returns J.</summary>
@@ -103,6 +101,18 @@ internal sealed class TrajectoryEvaluator
     /// <summary>(y − r)ᵀQ(y − r) + (u − u_s)ᵀR(u − u_s) + (u − u⁻)ᵀS(u − u⁻); an empty u⁻ drops the last term.</summary>
     public double StageCost(ReadOnlySpan<double> y, ReadOnlySpan<double> u, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> inputBefore)
     {
+        if (qDiagonal && rDiagonal && (sDiagonal || !hasRateWeight))
+        {
+            // The usual case: diagonal weights, summed directly without scratch buffers.
+            double sum = WeightedSquares(q, p, y, reference) + WeightedSquares(r, m, u, targetInput);
+            if (hasRateWeight && !inputBefore.IsEmpty)
+            {
+                sum += WeightedSquares(s, m, u, inputBefore);
+            }
+
+            return sum;
+        }
+
         Span<double> dy = p <= 256 ? stackalloc double[p] : new double[p];
         Span<double> du = m <= 256 ? stackalloc double[m] : new double[m];
         Difference(y, reference, dy);
@@ -116,6 +126,29 @@ internal sealed class TrajectoryEvaluator
         }
 
         return cost;
+    }
+
+    /// <summary>Σ_i w_ii (x_i − o_i)² for a diagonal row-major w; an empty offset means zero.</summary>
+    private static double WeightedSquares(double[] w, int size, ReadOnlySpan<double> x, ReadOnlySpan<double> offset)
+    {
+        double sum = 0;
+        if (offset.IsEmpty)
+        {
+            for (int i = 0; i < size; i++)
+            {
+                sum += w[(i * size) + i] * x[i] * x[i];
+            }
+        }
+        else
+        {
+            for (int i = 0; i < size; i++)
+            {
+                double d = x[i] - offset[i];
+                sum += w[(i * size) + i] * d * d;
+            }
+        }
+
+        return sum;
     }
 
     /// <summary>(x_N − x_s)ᵀP(x_N − x_s).</summary>
