@@ -302,6 +302,10 @@ internal sealed class ConstrainedProblem
             }
 
             xSpan[..nm].CopyTo(inputs);
+
+            // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an
+            // input a rounding error outside its window (−1e−17 for a fan whose minimum is 0) is put back on it.
+            ClipToInputLimits(inputs);
             var status = PlanStatus.Optimal;
             if (dropFirstRate)
             {

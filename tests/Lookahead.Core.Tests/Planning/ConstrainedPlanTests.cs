@@ -83,6 +83,26 @@ public class ConstrainedPlanTests
         Kkt.CheckPlan(model, new PlanRequest([5.0, -1.0]), plan, null, []);
     }
 
+    // Limits are checked exactly by the systems that receive the moves: not even a rounding error outside.
+    [Fact]
+    public void InputsNeverLeaveTheirWindowEvenByRounding()
+    {
+        var random = new Random(9);
+        var (a, b) = TestModels.Random(random, 4, 3, 1.1);
+        var model = ModelCompiler.Compile(TestModels.Discrete(a, b, 20, TestModels.Ones(4), [0.1, 0.1, 0.1], limits: new LimitsSpec(InputMin: [0.0, -0.2, 0.0], InputMax: [1.0, 0.2, 0.3])));
+        for (int trial = 0; trial < 50; trial++)
+        {
+            var plan = model.Plan(new PlanRequest(TestModels.RandomVector(random, 4, 3)));
+            for (int k = 0; k < plan.Horizon; k++)
+            {
+                var u = plan.Input(k);
+                Assert.InRange(u[0], 0.0, 1.0);
+                Assert.InRange(u[1], -0.2, 0.2);
+                Assert.InRange(u[2], 0.0, 0.3);
+            }
+        }
+    }
+
     [Fact]
     public void PlanRespectsRateLimitsFromThePreviousInput()
     {
