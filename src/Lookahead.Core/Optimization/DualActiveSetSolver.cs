@@ -19,6 +19,8 @@ public sealed class DualActiveSetSolver
 
     private readonly CholeskyFactor factor;
     private readonly double[] initialJ;
+    private readonly int[] singletonColumn;
+    private readonly double[] singletonValue;
 
     /// <param name="factor">G = LLᵀ.</param>
     /// <param name="constraints">Normals n_j, one row each; equalities first.</param>
@@ -42,6 +44,13 @@ public sealed class DualActiveSetSolver
 
         // J₀ = L⁻ᵀ: column c of J₀ is row c of L⁻¹.
         initialJ = factor.InverseTransposeColumnMajor();
+        singletonColumn = new int[constraints.RowCount];
+        singletonValue = new double[constraints.RowCount];
+        for (int row = 0; row < constraints.RowCount; row++)
+        {
+            singletonColumn[row] = constraints.IsSingleton(row) ? constraints.ColumnsOf(row)[0] : -1;
+            singletonValue[row] = constraints.IsSingleton(row) ? constraints.ValuesOf(row)[0] : 0;
+        }
     }
 
     public int Variables => factor.Size;
@@ -254,7 +263,8 @@ public sealed class DualActiveSetSolver
                 continue;
             }
 
-            double slack = Constraints.Dot(c, x) - rhs[c];
+            // Most rows of a plan are bounds on one input: read them directly.
+            double slack = (singletonColumn[c] >= 0 ? singletonValue[c] * x[singletonColumn[c]] : Constraints.Dot(c, x)) - rhs[c];
             if (slack < -FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
             {
                 double scaled = slack / Math.Max(Constraints.Norm(c), double.Epsilon);

@@ -50,6 +50,9 @@ public sealed class SparseRows
 
     public int RowCount => norms.Length;
 
+    /// <summary>True when row j has a single entry (a bound on one variable), so nᵀx is one product.</summary>
+    public bool IsSingleton(int row) => start[row + 1] - start[row] == 1;
+
     public int ColumnCount { get; }
 
     /// <summary>Stored entries, for memory accounting.</summary>
