@@ -8,8 +8,8 @@ namespace Lookahead.Core.Tests.Optimization;
 /// <summary>
 /// Published small convex QPs through the general solver entry point. Problem data and optimal values:
 /// Hock &amp; Schittkowski (1981), Springer; Schittkowski (1987), Springer (problem 268); Maros &amp; Mészáros (1999),
-/// Optim. Methods Softw. 11–12 — transcribed from memory, so each is cross-checked: CVXOPT 1.3.0 reaches the
-/// same optimum on the transcription (tests/reference/qp_problems.py), and here every solution must also pass KKT.
+/// Optim. Methods Softw. 11–12 — written down from memory, so each is cross-checked: CVXOPT 1.3.0 reaches the
+/// same optimum on our copy of each problem (tests/reference/qp_problems.py), and here every solution must also pass KKT.
 /// </summary>
 public class PublishedQpProblemTests
 {
