@@ -21,20 +21,43 @@ internal sealed class TrajectoryRowsConverter : JsonConverter<TrajectoryRows>
 
     public override void Write(Utf8JsonWriter writer, TrajectoryRows value, JsonSerializerOptions options)
     {
-        Span<byte> buffer = stackalloc byte[CompactNumber.MaxLength];
-        writer.WriteStartArray();
-        for (int r = 0; r < value.RowCount; r++)
+        // The whole trajectory is formatted into one buffer and handed over as a single raw value: per-number
+        // writer calls cost more than the digits themselves.
+        int rows = value.RowCount;
+        int size = 2 + (rows * (3 + (value.Columns * (CompactNumber.MaxLength + 1))));
+        byte[] buffer = System.Buffers.ArrayPool<byte>.Shared.Rent(size);
+        try
         {
-            writer.WriteStartArray();
-            foreach (double v in value.Row(r))
+            int at = 0;
+            buffer[at++] = (byte)'[';
+            for (int r = 0; r < rows; r++)
             {
-                int length = CompactNumber.Format(v, buffer);
-                writer.WriteRawValue(buffer[..length], skipInputValidation: true);
+                if (r > 0)
+                {
+                    buffer[at++] = (byte)',';
+                }
+
+                buffer[at++] = (byte)'[';
+                var row = value.Row(r);
+                for (int c = 0; c < row.Length; c++)
+                {
+                    if (c > 0)
+                    {
+                        buffer[at++] = (byte)',';
+                    }
+
+                    at += CompactNumber.Format(row[c], buffer.AsSpan(at));
+                }
+
+                buffer[at++] = (byte)']';
             }
 
-            writer.WriteEndArray();
+            buffer[at++] = (byte)']';
+            writer.WriteRawValue(buffer.AsSpan(0, at), skipInputValidation: true);
         }
-
-        writer.WriteEndArray();
+        finally
+        {
+            System.Buffers.ArrayPool<byte>.Shared.Return(buffer);
+        }
     }
 }
