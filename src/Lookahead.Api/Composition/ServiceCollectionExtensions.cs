@@ -19,6 +19,9 @@ public static class ServiceCollectionExtensions
 {
     public static IServiceCollection AddLookahead(this IServiceCollection services)
     {
+        // Requests already run in parallel; a registration's compile must not take every core from running
+        // plans through MathNet's own parallel products, so the numeric library stays on the calling thread.
+        MathNet.Numerics.Control.UseSingleThread();
         services.AddLookaheadOptions();
         services.AddLookaheadJson();
         services.AddLookaheadStore();
