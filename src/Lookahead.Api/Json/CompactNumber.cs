@@ -25,6 +25,12 @@ internal static class CompactNumber
             return 1;
         }
 
+        if (!double.IsFinite(value))
+        {
+            // JSON has no NaN or ∞; the core refuses such results, so this is a bug, not bad input.
+            throw new ArgumentOutOfRangeException(nameof(value), "a non-finite number cannot be written as JSON");
+        }
+
         double magnitude = Math.Abs(value);
         if (!(magnitude >= 1e-290 && magnitude <= 1e290))
         {

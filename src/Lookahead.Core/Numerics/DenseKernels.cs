@@ -220,6 +220,32 @@ public static class DenseKernels
         }
     }
 
+    /// <summary>True when every entry is finite. A vectorised sum: NaN and ±∞ survive addition, so one test at the end suffices.</summary>
+    public static bool AllFinite(ReadOnlySpan<double> x)
+    {
+        var acc = Vector<double>.Zero;
+        int i = 0;
+        if (Vector.IsHardwareAccelerated && x.Length >= Vector<double>.Count)
+        {
+            var xv = MemoryMarshal.Cast<double, Vector<double>>(x);
+            for (int v = 0; v < xv.Length; v++)
+            {
+                // x·0 is 0 for finite x and NaN for ±∞ or NaN, so large finite values cannot overflow the test.
+                acc += xv[v] * Vector<double>.Zero;
+            }
+
+            i = xv.Length * Vector<double>.Count;
+        }
+
+        double sum = Vector.Sum(acc);
+        for (; i < x.Length; i++)
+        {
+            sum += x[i] * 0.0;
+        }
+
+        return sum == 0;
+    }
+
     /// <summary>xᵀ W x for a row-major square W; when <paramref name="diagonal"/> is set, only W's diagonal is read.</summary>
     public static double QuadraticForm(ReadOnlySpan<double> w, ReadOnlySpan<double> x, bool diagonal)
     {

@@ -9,6 +9,7 @@ namespace Lookahead.Core.Numerics;
 public static class ZeroOrderHold
 {
     /// <summary>Returns (A_d, B_d) for sample time <paramref name="sampleTime"/> &gt; 0 (seconds).</summary>
+    /// <exception cref="ArgumentException">Shapes do not match, an entry is not finite, or the exponential overflows.</exception>
     public static (Matrix<double> Ad, Matrix<double> Bd) Discretise(Matrix<double> a, Matrix<double> b, double sampleTime)
     {
         if (a.RowCount != a.ColumnCount || b.RowCount != a.RowCount)
@@ -27,6 +28,11 @@ public static class ZeroOrderHold
         block.SetSubMatrix(0, 0, a * sampleTime);
         block.SetSubMatrix(0, n, b * sampleTime);
         var e = MatrixExponential.Compute(block);
+        if (e.Enumerate().Any(v => !double.IsFinite(v)))
+        {
+            throw new ArgumentException("the zero-order hold overflows: A·T or B·T is too large");
+        }
+
         return (e.SubMatrix(0, n, 0, n), e.SubMatrix(0, n, n, m));
     }
 }

@@ -162,7 +162,14 @@ public static class ClosedLoopSimulator
                 var b = DenseMatrix.FromRows(plant.B);
                 if (plant.TimeDomain == TimeDomain.Continuous)
                 {
-                    (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
+                    try
+                    {
+                        (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
+                    }
+                    catch (ArgumentException ex)
+                    {
+                        errors.Add(new("truePlant", $"cannot be discretised at the model's sample time: {ex.Message}"));
+                    }
                 }
 
                 trueA = DenseMatrix.RowMajor(a);

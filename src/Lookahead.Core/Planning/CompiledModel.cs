@@ -209,6 +209,11 @@ public sealed class CompiledModel
             plan.Warnings = warnings;
         }
 
+        if (!double.IsFinite(plan.Cost) || !DenseKernels.AllFinite(plan.Inputs) || !DenseKernels.AllFinite(plan.States) || !DenseKernels.AllFinite(plan.Outputs))
+        {
+            throw Overflow();
+        }
+
         return plan;
     }
 
@@ -268,6 +273,11 @@ public sealed class CompiledModel
         }
 
         double cost = gains.CostForm.Evaluate(request.State, request.PreviousInput, request.Reference, targetState, targetInput);
+        if (!double.IsFinite(cost) || !DenseKernels.AllFinite(firstMove))
+        {
+            throw Overflow();
+        }
+
         return new FirstMoveResult(PlanStatus.Optimal, Math.Max(cost, 0), warnings);
     }
 
@@ -282,6 +292,11 @@ public sealed class CompiledModel
             }
         }
     }
+
+    /// <summary>Finite but enormous request values can still overflow the prediction; refuse them as a bad request.</summary>
+    private static ModelValidationException Overflow() => new(
+        "state",
+        "the values are too large: the predicted trajectory or its cost overflows for this plant and horizon");
 
     /// <summary>The same test as <see cref="ValidateRequest"/> without building an error list.</summary>
     private bool IsWellFormed(PlanRequest request)

@@ -19,7 +19,14 @@ public static class ModelCompiler
         var b = model.B;
         if (model.TimeDomain == TimeDomain.Continuous)
         {
-            (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
+            try
+            {
+                (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
+            }
+            catch (ArgumentException ex)
+            {
+                throw new ModelValidationException("plant", $"cannot be discretised at this sample time: {ex.Message}");
+            }
         }
 
         var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);

@@ -116,5 +116,27 @@ public class UnconstrainedPlanTests
         Assert.Contains(ex.Errors, e => e.Path == "previousInput");
     }
 
+    // Finite but enormous values overflow the prediction: a bad request with a reason, never NaN or ∞ in a plan.
+    [Fact]
+    public void PlanRefusesValuesThatOverflowThePrediction()
+    {
+        var model = ModelCompiler.Compile(TestModels.Discrete([[1.5, 0.1], [0.0, 1.2]], [[0.0], [1.0]], 20, [1.0, 1.0], [1.0], limits: new LimitsSpec(InputMin: [-1.0], InputMax: [1.0])));
+        var ex = Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => model.Plan(new PlanRequest([1e308, 1e308])));
+        Assert.Equal("state", Assert.Single(ex.Errors).Path);
+        var free = ModelCompiler.Compile(TestModels.Discrete([[1.5, 0.1], [0.0, 1.2]], [[0.0], [1.0]], 20, [1.0, 1.0], [1.0]));
+        Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => free.FirstMove(new PlanRequest([1e308, -1e308], [1e308, 1e308]), new double[1]));
+    }
+
+    [Fact]
+    public void ContinuousPlantWhoseHoldOverflowsIsRefused()
+    {
+        var document = new ModelDocument("big", new PlantSpec([[1e200]], [[1.0]], null, 1.0, TimeDomain.Continuous), new CostSpec(3, WeightSpec.FromDiagonal([1.0]), WeightSpec.FromDiagonal([1.0]), null, TerminalWeightSpec.Stage));
+        var ex = Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => ModelCompiler.Compile(document));
+        Assert.Equal("plant", Assert.Single(ex.Errors).Path);
+        var model = ModelCompiler.Compile(TestModels.Discrete([[0.5]], [[1.0]], 3, [1.0], [1.0]));
+        var simulation = Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => ClosedLoopSimulator.Simulate(model, new SimulationRequest([1.0], 3, TruePlant: new PlantSpec([[1e308]], [[1.0]], null, 1.0, TimeDomain.Continuous))));
+        Assert.Contains(simulation.Errors, e => e.Path == "truePlant");
+    }
+
     internal static Matrix<double> DenseOf(double[][] rows) => Matrix<double>.Build.DenseOfRowArrays(rows);
 }
