@@ -1,14 +1,25 @@
-using Lookahead.Api.Composition;
+using Lookahead.Api.Aliases;
+using Lookahead.Api.Hosting;
+using Lookahead.Api.Models;
+using Lookahead.Api.Plans;
+using Lookahead.Api.Replay;
+using Lookahead.Api.Simulation;
 
-// Composition lives in Composition/: configuration and logging, services, pipeline, endpoints.
+// Hosting/ holds what every feature stands on; each feature folder registers and maps itself.
 var builder = WebApplication.CreateBuilder(args);
 builder.AddLookaheadConfiguration(args);
 builder.AddLookaheadLogging();
-builder.Services.AddLookahead();
+builder.Services.AddLookaheadHosting();
+builder.Services.AddModels().AddPlans().AddReplay().AddSimulation().AddAliases();
 
 var app = builder.Build();
 app.UseLookaheadPipeline();
-app.MapLookaheadEndpoints();
+app.MapModelsApi();
+app.MapPlansApi();
+app.MapReplayApi();
+app.MapSimulationApi();
+app.MapAliasesApi();
+app.MapHostingEndpoints();
 app.Run();
 
 /// <summary>Entry point; public and partial so tests can host it with WebApplicationFactory.</summary>

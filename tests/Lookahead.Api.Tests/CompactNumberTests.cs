@@ -1,6 +1,6 @@
 using System.Globalization;
 using System.Text;
-using Lookahead.Api.Json;
+using Lookahead.Api.Http;
 using Xunit;
 
 namespace Lookahead.Api.Tests;

@@ -99,7 +99,7 @@ public class ReplayTests
         var query = await (await client.PostJsonAsync($"/v1/models/{id}/plans?detail=full", """{"requests":[{"state":[1,0]}]}""")).ReadJsonAsync();
 
         Assert.Equal("first-move", late["detail"]!.GetValue<string>());
-        Assert.Contains(late["warnings"]!.AsArray(), w => w!.GetValue<string>().Contains("'detail' came after 'requests'", StringComparison.Ordinal));
+        Assert.Contains(late["warnings"]!.AsArray(), w => w!["code"]!.GetValue<string>() == "detail-after-requests" && w["message"]!.GetValue<string>().Contains("'detail' came after 'requests'", StringComparison.Ordinal));
         Assert.Equal("full", query["detail"]!.GetValue<string>());
         Assert.Equal(10, query["results"]![0]!["inputs"]!.AsArray().Count);
     }

@@ -1,6 +1,5 @@
 using System.Text.Json;
 using System.Text.Json.Serialization.Metadata;
-using Lookahead.Api.Contracts;
 using Lookahead.Core.Models;
 
 namespace Lookahead.Api.Catalog;
@@ -24,8 +23,8 @@ public sealed record CanonicalModel(string Id, byte[] Json, ModelDocumentDto Dto
     {
         var typeInfo = (JsonTypeInfo<ModelDocumentDto>)options.GetTypeInfo(typeof(ModelDocumentDto));
         var dto = JsonSerializer.Deserialize(json, typeInfo) ?? throw new JsonException("stored model document is empty");
-        var errors = new List<ProblemError>();
-        var document = ModelDocumentMapper.ToCore(dto, errors);
+        var errors = new List<Lookahead.Core.Validation.ValidationError>();
+        var document = ModelDocumentMapping.ToCore(dto, errors);
         if (errors.Count > 0)
         {
             throw new InvalidOperationException($"stored model document does not map: {errors[0].Path}: {errors[0].Reason}");

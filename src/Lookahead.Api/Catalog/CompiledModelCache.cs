@@ -1,8 +1,7 @@
 using System.Collections.Concurrent;
 using System.Diagnostics;
 using System.Diagnostics.CodeAnalysis;
-using Lookahead.Api.Configuration;
-using Lookahead.Api.Observability;
+using Lookahead.Api.Http;
 using Lookahead.Core.Models;
 using Lookahead.Core.Planning;
 using Microsoft.Extensions.Caching.Memory;
@@ -18,12 +17,12 @@ public sealed class CompiledModelCache : IDisposable
 {
     private readonly MemoryCache cache;
     private readonly ConcurrentDictionary<string, Lazy<Task<CompiledModel?>>> inFlight = new(StringComparer.Ordinal);
-    private readonly LookaheadMetrics metrics;
+    private readonly CatalogMetrics metrics;
     private readonly CompileOptions compileOptions;
     private readonly ILogger<CompiledModelCache> logger;
     private readonly long sizeLimit;
 
-    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, LookaheadMetrics metrics, ILogger<CompiledModelCache> logger)
+    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, CatalogMetrics metrics, ILogger<CompiledModelCache> logger)
     {
         sizeLimit = options.Value.SizeLimitBytes;
         cache = new MemoryCache(new MemoryCacheOptions { SizeLimit = sizeLimit, TrackStatistics = true, CompactionPercentage = 0.1 });

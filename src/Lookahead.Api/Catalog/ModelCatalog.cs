@@ -1,7 +1,4 @@
-using Lookahead.Api.Configuration;
-using Lookahead.Api.Contracts;
-using Lookahead.Api.Observability;
-using Lookahead.Api.Problems;
+using Lookahead.Api.Http;
 using Lookahead.Api.Storage;
 using Lookahead.Core.Planning;
 using Lookahead.Core.Validation;
@@ -19,17 +16,17 @@ public sealed class ModelCatalog(
     CompiledModelCache cache,
     IOptions<JsonOptions> json,
     IOptions<RequestLimitsOptions> limits,
-    LookaheadMetrics metrics,
+    CatalogMetrics metrics,
     TimeProvider time)
 {
     public async Task<RegistrationResult> RegisterAsync(ModelDocumentDto dto, CancellationToken cancellationToken)
     {
-        var normalised = ModelDocumentMapper.Normalise(dto);
-        var errors = new List<ProblemError>();
-        var document = ModelDocumentMapper.ToCore(normalised, errors);
+        var normalised = ModelDocumentMapping.Normalise(dto);
+        var errors = new List<ValidationError>();
+        var document = ModelDocumentMapping.ToCore(normalised, errors);
         if (errors.Count == 0)
         {
-            errors.AddRange(ModelValidator.Validate(document, limits.Value.ToSizeLimits()).Select(ApiProblems.ToProblemError));
+            errors.AddRange(ModelValidator.Validate(document, limits.Value.ToSizeLimits()));
         }
 
         if (errors.Count > 0)
@@ -49,7 +46,7 @@ public sealed class ModelCatalog(
             catch (ModelValidationException ex)
             {
                 metrics.Registrations.WithLabels("rejected").Inc();
-                return RegistrationResult.Rejected(ex.Errors.Select(ApiProblems.ToProblemError).ToList());
+                return RegistrationResult.Rejected(ex.Errors);
             }
         }
 

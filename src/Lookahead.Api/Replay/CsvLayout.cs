@@ -1,4 +1,4 @@
-using Lookahead.Api.Contracts;
+using Lookahead.Api.Http;
 using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;

@@ -1,7 +1,7 @@
 using System.Globalization;
 using System.Text;
 using CsvHelper;
-using Lookahead.Api.Mapping;
+using Lookahead.Api.Http;
 
 namespace Lookahead.Api.Replay;
 
@@ -78,9 +78,8 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
                     csv.WriteField(row.Output.WrittenSpan.Slice(start, length));
                 }
 
-                csv.WriteField(PlanMapper.StatusName(outcome.Status));
-                var warnings = row.Warnings;
-                csv.WriteField(warnings.Count == 0 ? "" : string.Join("; ", warnings));
+                csv.WriteField(WireNames.Status(outcome.Status));
+                csv.WriteField(Describe(outcome.Warnings));
             }
             else
             {
@@ -114,6 +113,28 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
         value.TryFormat(span, out int written, "R", CultureInfo.InvariantCulture);
         row.Output.Advance(written);
         row.OutputFields.Add((start, written));
+    }
+
+    /// <summary>The message column of a planned row: each warning as "code: sentence", separated by "; ".</summary>
+    private static string Describe(IReadOnlyList<Lookahead.Core.Planning.Warning> warnings)
+    {
+        if (warnings.Count == 0)
+        {
+            return "";
+        }
+
+        var text = new StringBuilder();
+        foreach (var warning in warnings)
+        {
+            if (text.Length > 0)
+            {
+                text.Append("; ");
+            }
+
+            text.Append(WireNames.Warning(warning.Code)).Append(": ").Append(WarningText.Message(warning));
+        }
+
+        return text.ToString();
     }
 
     private static string Describe(ReplayRow row)

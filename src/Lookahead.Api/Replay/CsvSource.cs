@@ -1,6 +1,6 @@
 using System.Globalization;
 using CsvHelper;
-using Lookahead.Api.Contracts;
+using Lookahead.Api.Http;
 using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;

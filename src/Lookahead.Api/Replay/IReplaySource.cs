@@ -1,3 +1,5 @@
+using Lookahead.Api.Http;
+
 namespace Lookahead.Api.Replay;
 
 /// <summary>Where replay rows come from (NDJSON, JSON, CSV). Filling is sequential; parsing a filled row may run on any thread.</summary>
@@ -27,4 +29,4 @@ internal interface IReplaySink
 }
 
 /// <summary>Totals written at the end where the format has room for them.</summary>
-internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<string> Warnings);
+internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<WarningDto> Warnings);

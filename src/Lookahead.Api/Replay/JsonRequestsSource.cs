@@ -1,7 +1,8 @@
 using System.Buffers;
 using System.IO.Pipelines;
 using System.Text.Json;
-using Lookahead.Api.Contracts;
+using Lookahead.Api.Http;
+using Lookahead.Api.Plans;
 
 namespace Lookahead.Api.Replay;
 
@@ -30,7 +31,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
 
     public string? Detail { get; private set; }
 
-    public List<string> Warnings { get; } = [];
+    public List<WarningDto> Warnings { get; } = [];
 
     /// <summary>Reads up to the first element of "requests". A problem here is the client's whole request, answered with 400.</summary>
     public async ValueTask<ProblemError?> PrepareAsync(CancellationToken cancellationToken)
@@ -70,7 +71,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
     {
         if (row.Errors.Count == 0)
         {
-            PlanRowParser.Parse(row, $"requests[{row.Number - 1}].", maxDepth);
+            PlanRequestParser.Parse(row.RawSpan, row, $"requests[{row.Number - 1}].", maxDepth);
         }
     }
 
@@ -184,7 +185,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
                         {
                             if (value != Detail)
                             {
-                                Warnings.Add($"'detail' came after 'requests' and was ignored; results were written as '{Detail ?? "first-move"}'. Send it first, or use ?detail=");
+                                Warnings.Add(new WarningDto("detail-after-requests", $"'detail' came after 'requests' and was ignored; results were written as '{Detail ?? "first-move"}'. Send it first, or use ?detail="));
                             }
                         }
                         else

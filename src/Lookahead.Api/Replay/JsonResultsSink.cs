@@ -1,6 +1,7 @@
 using System.Buffers;
 using System.IO.Pipelines;
 using System.Text.Json;
+using Lookahead.Api.Http;
 
 namespace Lookahead.Api.Replay;
 
@@ -8,7 +9,7 @@ namespace Lookahead.Api.Replay;
 /// Writes { "modelId", "detail", "results": [ … ], "rows", "failedRows", "warnings" } as it goes; the totals come
 /// last because they are only known at the end.
 /// </summary>
-internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<ReplayDetail> detail, Func<IReadOnlyList<string>> sourceWarnings) : IReplaySink
+internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<ReplayDetail> detail, Func<IReadOnlyList<WarningDto>> sourceWarnings) : IReplaySink
 {
     public bool NeedsFullPlan => detail() == ReplayDetail.Full;
 
@@ -61,13 +62,8 @@ internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<Re
             json.WriteStartObject();
             json.WriteNumber("rows", summary.Rows);
             json.WriteNumber("failedRows", summary.FailedRows);
-            json.WriteStartArray("warnings");
-            foreach (var warning in sourceWarnings().Concat(summary.Warnings))
-            {
-                json.WriteStringValue(warning);
-            }
-
-            json.WriteEndArray();
+            json.WritePropertyName("warnings");
+            ResultJsonWriter.WriteWarnings(json, sourceWarnings().Concat(summary.Warnings));
             json.WriteEndObject();
         }
 

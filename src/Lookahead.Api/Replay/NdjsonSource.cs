@@ -1,5 +1,6 @@
 using System.Buffers;
 using System.IO.Pipelines;
+using Lookahead.Api.Plans;
 
 namespace Lookahead.Api.Replay;
 
@@ -81,7 +82,7 @@ internal sealed class NdjsonSource(PipeReader reader, int maxRowBytes, int maxDe
     {
         if (row.Errors.Count == 0)
         {
-            PlanRowParser.Parse(row, "", maxDepth);
+            PlanRequestParser.Parse(row.RawSpan, row, "", maxDepth);
         }
     }
 

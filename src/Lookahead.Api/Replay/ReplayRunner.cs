@@ -1,9 +1,6 @@
-using System.Diagnostics;
 using System.Text.Json;
-using Lookahead.Api.Configuration;
-using Lookahead.Api.Observability;
+using Lookahead.Api.Plans;
 using Lookahead.Core.Planning;
-using Lookahead.Core.Validation;
 using Microsoft.Extensions.Options;
 
 namespace Lookahead.Api.Replay;
@@ -13,7 +10,7 @@ namespace Lookahead.Api.Replay;
 /// read, and results are written strictly in input order. Two batches of slots are all the memory it needs,
 /// whatever the number of rows.
 /// </summary>
-public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetrics metrics)
+public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner planner, ReplayMetrics metrics)
 {
     internal async Task<ReplaySummary> RunAsync(IReplaySource source, IReplaySink sink, CompiledModel model, string format, CancellationToken cancellationToken)
     {
@@ -26,8 +23,8 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
             MaxDegreeOfParallelism = options.Value.MaxDegreeOfParallelism > 0 ? options.Value.MaxDegreeOfParallelism : Environment.ProcessorCount,
             CancellationToken = cancellationToken,
         };
-        var duration = metrics.PlanDuration.WithLabels("replay");
         long rows = 0, failed = 0;
+        var depth = sink.NeedsFullPlan ? PlanDepth.Full : PlanDepth.FirstMove;
 
         await sink.StartAsync(cancellationToken);
         var filling = source.FillAsync(current, cancellationToken).AsTask();
@@ -48,10 +45,7 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
                 {
                     var row = batch[i];
                     source.Parse(row);
-                    if (row.Errors.Count == 0)
-                    {
-                        Solve(model, row, sink.NeedsFullPlan, duration);
-                    }
+                    planner.Run(model, row, depth, PlanRoute.Replay);
 
                     sink.Format(row, scratch);
                     return scratch;
@@ -71,40 +65,10 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, LookaheadMetri
             (current, spare) = (spare, current);
         }
 
-        metrics.ReplayRows.WithLabels(format, "planned").Inc(rows - failed);
-        metrics.ReplayRows.WithLabels(format, "error").Inc(failed);
+        metrics.Rows.WithLabels(format, "planned").Inc(rows - failed);
+        metrics.Rows.WithLabels(format, "error").Inc(failed);
         var summary = new ReplaySummary(rows, failed, []);
         await sink.CompleteAsync(summary, cancellationToken);
         return summary;
-    }
-
-    private static void Solve(CompiledModel model, ReplayRow row, bool fullPlan, Prometheus.Histogram.Child duration)
-    {
-        long started = Stopwatch.GetTimestamp();
-        try
-        {
-            var request = new PlanRequest(row.State, row.HasReference ? row.Reference : null, row.HasPreviousInput ? row.PreviousInput : null);
-            if (fullPlan)
-            {
-                var plan = model.Plan(request);
-                row.Plan = plan;
-                plan.Input(0).CopyTo(row.FirstMove);
-                row.Outcome = new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
-            }
-            else
-            {
-                // Historians mostly want u_0: the first-move path skips the trajectory when the model allows it.
-                row.Outcome = model.FirstMove(request, row.FirstMove);
-            }
-
-            duration.Observe(Stopwatch.GetElapsedTime(started).TotalSeconds);
-        }
-        catch (ModelValidationException ex)
-        {
-            foreach (var error in ex.Errors)
-            {
-                row.AddError(error.Path, error.Reason);
-            }
-        }
     }
 }

@@ -1,5 +1,5 @@
 using System.Text.Json;
-using Lookahead.Api.Mapping;
+using Lookahead.Api.Http;
 using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;
@@ -52,7 +52,7 @@ internal static class ResultJsonWriter
         }
         else
         {
-            writer.WriteString(Status, PlanMapper.StatusName(outcome.Status));
+            writer.WriteString(Status, WireNames.Status(outcome.Status));
         }
 
         if (detail == ReplayDetail.FirstMove || row.Plan is not { } plan)
@@ -81,7 +81,7 @@ internal static class ResultJsonWriter
             foreach (var limit in plan.ActiveLimits)
             {
                 writer.WriteStartObject();
-                writer.WriteString("kind", PlanMapper.LimitKindName(limit.Kind));
+                writer.WriteString("kind", WireNames.Limit(limit.Kind));
                 writer.WriteNumber("step", limit.Step);
                 writer.WriteNumber("index", limit.Index);
                 writer.WriteEndObject();
@@ -92,19 +92,26 @@ internal static class ResultJsonWriter
             writer.WriteNumber(MaxOutputViolation, plan.MaxOutputViolation);
         }
 
-        var warnings = row.Warnings;
+        var warnings = outcome.Warnings;
         if (warnings.Count > 0 || detail == ReplayDetail.Full)
         {
-            writer.WriteStartArray(Warnings);
-            foreach (var warning in warnings)
-            {
-                writer.WriteStringValue(warning);
-            }
-
-            writer.WriteEndArray();
+            writer.WritePropertyName(Warnings);
+            WriteWarnings(writer, WarningText.ToDtos(warnings));
         }
 
         writer.WriteEndObject();
+    }
+
+    /// <summary>A warnings array, shaped exactly as in the other responses.</summary>
+    public static void WriteWarnings(Utf8JsonWriter writer, IEnumerable<WarningDto> warnings)
+    {
+        writer.WriteStartArray();
+        foreach (var warning in warnings)
+        {
+            JsonSerializer.Serialize(writer, warning, HttpJsonContext.Default.WarningDto);
+        }
+
+        writer.WriteEndArray();
     }
 
     private static void WriteVector(Utf8JsonWriter writer, JsonEncodedText name, ReadOnlySpan<double> values)

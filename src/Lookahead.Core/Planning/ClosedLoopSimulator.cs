@@ -22,7 +22,7 @@ public static class ClosedLoopSimulator
         var inputs = new double[steps][];
         var outputs = new double[steps + 1][];
         var references = request.References is { Count: > 0 } ? new double[steps][] : null;
-        var warnings = new List<string>();
+        var warnings = new List<Warning>();
         states[0] = (double[])request.InitialState.Clone();
         double[]? previous = request.PreviousInput;
         double total = 0;
@@ -80,7 +80,7 @@ public static class ClosedLoopSimulator
         evaluator.Output(states[steps], outputs[steps]);
         if (nonOptimal > 0)
         {
-            warnings.Add($"{nonOptimal} of {steps} steps did not reach a clean optimum");
+            warnings.Add(new Warning(WarningCode.StepsNotOptimal) { Count = nonOptimal });
         }
 
         return new SimulationResult(steps, states, inputs, outputs, references, total, nonOptimal, warnings);

@@ -149,7 +149,7 @@ public sealed class CompiledModel
         Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
-        List<string>? warnings = null;
+        List<Warning>? warnings = null;
         if (request.Reference is { } reference)
         {
             DenseKernels.Multiply(targets.StateMap, reference, targetState);
@@ -161,9 +161,7 @@ public sealed class CompiledModel
             plan.Target = MakeTarget(reference, targetState, targetInput, limited);
             if (!plan.Target.ReferenceReached)
             {
-                (warnings ??= []).Add(limited
-                    ? "the setpoint cannot be held within the input limits; the plan steers to the closest reachable steady state"
-                    : "the setpoint is not an equilibrium the inputs can hold; the plan steers to the closest steady state (least squares)");
+                (warnings ??= []).Add(new Warning(limited ? WarningCode.SetpointOutsideInputLimits : WarningCode.SetpointUnreachable) { Amount = plan.Target.OutputError });
             }
         }
 
@@ -189,10 +187,11 @@ public sealed class CompiledModel
                 (warnings ??= []).AddRange(outcome.Warnings);
             }
             plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput) + outcome.Penalty;
-            plan.MaxOutputViolation = constrained.MaxViolation(plan.Outputs, p);
-            if (plan.MaxOutputViolation > 1e-9)
+            var violation = constrained.WorstViolation(plan.Outputs, p);
+            plan.MaxOutputViolation = violation.Amount;
+            if (violation.Amount > 1e-9)
             {
-                (warnings ??= []).Add($"the predicted outputs exceed their soft limits by up to {plan.MaxOutputViolation:g4}: the hard input limits leave no plan that respects them");
+                (warnings ??= []).Add(new Warning(WarningCode.SoftOutputLimitExceeded) { Output = violation.Output, Step = violation.Step, Amount = violation.Amount });
             }
         }
         else
@@ -248,7 +247,7 @@ public sealed class CompiledModel
         Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
-        IReadOnlyList<string> warnings = [];
+        IReadOnlyList<Warning> warnings = [];
         if (request.Reference is { } reference)
         {
             DenseKernels.Multiply(targets.StateMap, reference, targetState);
@@ -256,9 +255,10 @@ public sealed class CompiledModel
             AddFirstRows(gains.Kr, reference, rows, firstMove);
             AddFirstRows(gains.Kxs, targetState, rows, firstMove);
             AddFirstRows(gains.Kus, targetInput, rows, firstMove);
-            if (!MakeTarget(reference, targetState, targetInput, limited: false).ReferenceReached)
+            var target = MakeTarget(reference, targetState, targetInput, limited: false);
+            if (!target.ReferenceReached)
             {
-                warnings = ["the setpoint is not an equilibrium the inputs can hold; the plan steers to the closest steady state (least squares)"];
+                warnings = [new Warning(WarningCode.SetpointUnreachable) { Amount = target.OutputError }];
             }
         }
 
@@ -348,7 +348,7 @@ public sealed class CompiledModel
             scale = Math.Max(scale, Math.Abs(reference[j]));
         }
 
-        return new SteadyStateTarget(state.ToArray(), input.ToArray(), output, worst <= 1e-9 * scale, limited);
+        return new SteadyStateTarget(state.ToArray(), input.ToArray(), output, worst <= 1e-9 * scale, limited) { OutputError = worst };
     }
 
     private static void CheckVector(double[]? vector, string path, int size, bool required, List<ValidationError> errors)

@@ -235,16 +235,20 @@ internal sealed class ConstrainedProblem
         }
     }
 
-    /// <summary>Largest amount by which y_1 … y_N exceed the soft output limits.</summary>
-    public double MaxViolation(ReadOnlySpan<double> outputs, int p)
+    /// <summary>Largest amount by which y_1 … y_N exceed the soft output limits, and where (output −1 when none does).</summary>
+    public (double Amount, int Output, int Step) WorstViolation(ReadOnlySpan<double> outputs, int p)
     {
-        double worst = 0;
+        (double Amount, int Output, int Step) worst = (0, -1, 0);
         for (int k = 1; k <= horizon; k++)
         {
             foreach (int j in slackOutputs)
             {
                 double y = outputs[(k * p) + j];
-                worst = Math.Max(worst, Math.Max(limits.OutputMin[j] - y, y - limits.OutputMax[j]));
+                double excess = Math.Max(limits.OutputMin[j] - y, y - limits.OutputMax[j]);
+                if (excess > worst.Amount)
+                {
+                    worst = (excess, j, k);
+                }
             }
         }
 
@@ -261,7 +265,7 @@ internal sealed class ConstrainedProblem
     {
         int nm = horizon * m;
         int ns = slackOutputs.Length;
-        var warnings = new List<string>();
+        var warnings = new List<Warning>();
         var unreachable = UnreachableFirstMoves(previousInput).ToList();
         bool dropFirstRate = unreachable.Count > 0;
         var workspace = Rent();
@@ -310,21 +314,26 @@ internal sealed class ConstrainedProblem
             if (dropFirstRate)
             {
                 status = PlanStatus.Infeasible;
-                warnings.Add($"infeasible: the first move of input(s) {string.Join(", ", unreachable)} cannot reach the input window from the previous input within the rate limits; the plan keeps the input limits and ignores the first rate limit — do not apply it unchecked");
+                foreach (int input in unreachable)
+                {
+                    warnings.Add(new Warning(WarningCode.FirstMoveRateRelaxed) { Input = input, Step = 0 });
+                }
             }
 
             if (result.Status == QpStatus.IterationLimit)
             {
                 status = status == PlanStatus.Infeasible ? status : PlanStatus.IterationLimit;
                 ClipToInputLimits(inputs);
-                warnings.Add($"the solver stopped at its iteration cap ({maxIterations}); the inputs were projected onto the input limits and are not optimal");
+                warnings.Add(new Warning(WarningCode.IterationLimit) { Count = maxIterations });
             }
             else if (result.Status == QpStatus.Infeasible)
             {
                 status = PlanStatus.Infeasible;
                 ClipToInputLimits(inputs);
                 var blocking = result.BlockingConstraint >= 0 ? rows[result.BlockingConstraint] : default;
-                warnings.Add($"infeasible: the hard limits contradict each other (blocked at {blocking.Kind} step {blocking.Step} index {blocking.Index}); the inputs were projected onto the input limits");
+                warnings.Add(result.BlockingConstraint >= 0
+                    ? new Warning(WarningCode.LimitsContradict) { Limit = blocking.Kind, Step = blocking.Step, Input = blocking.Kind is LimitKind.OutputMin or LimitKind.OutputMax ? null : blocking.Index, Output = blocking.Kind is LimitKind.OutputMin or LimitKind.OutputMax ? blocking.Index : null }
+                    : new Warning(WarningCode.LimitsContradict));
             }
 
             var active = new List<ActiveLimit>();

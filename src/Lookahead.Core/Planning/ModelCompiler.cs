@@ -31,7 +31,7 @@ public static class ModelCompiler
 
         var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);
         qx = (qx + qx.Transpose()) * 0.5;
-        var warnings = new List<string>();
+        var warnings = new List<Warning>();
 
         RiccatiSolution? riccati = null;
         Matrix<double> terminal;
@@ -92,26 +92,26 @@ public static class ModelCompiler
 
         if (closedLoopRadius >= 1)
         {
-            warnings.Add($"closed loop unstable with this horizon and terminal weight: spectral radius of A − BK is {closedLoopRadius:g6}; lengthen the horizon or use the 'riccati' terminal weight");
+            warnings.Add(new Warning(WarningCode.ClosedLoopUnstable) { Amount = closedLoopRadius });
         }
 
         if (!stabilisable.Holds)
         {
-            warnings.Add($"the plant is not stabilisable: the mode at λ = {stabilisable.Witness.Real:g6}{(stabilisable.Witness.Imaginary != 0 ? $"{stabilisable.Witness.Imaginary:+0.######;-0.######}i" : "")} cannot be moved by any input");
+            warnings.Add(new Warning(WarningCode.NotStabilisable) { Eigenvalue = stabilisable.Witness });
         }
         else if (rank < n)
         {
-            warnings.Add($"the plant is not controllable (controllability rank {rank} of {n}); the uncontrollable modes are stable and will decay on their own");
+            warnings.Add(new Warning(WarningCode.NotControllable) { Count = rank });
         }
 
         if (!detectable.Holds)
         {
-            warnings.Add($"a mode with |λ| ≥ 1 (λ = {detectable.Witness.Real:g6}) is not seen by the output weight; plans will not act on it");
+            warnings.Add(new Warning(WarningCode.ModeUnseenByCost) { Eigenvalue = detectable.Witness });
         }
 
         if (condition > options.IllConditionedThreshold)
         {
-            warnings.Add($"the condensed Hessian is ill-conditioned (condition number {condition:g3}); plans may lose accuracy — shorten the horizon, raise the input weight, or rescale the model");
+            warnings.Add(new Warning(WarningCode.HessianIllConditioned) { Amount = condition });
         }
 
         var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);

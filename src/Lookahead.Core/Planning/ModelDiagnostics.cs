@@ -12,7 +12,7 @@ namespace Lookahead.Core.Planning;
 /// <param name="RiccatiIterations">Doubling steps, when the Riccati equation was solved.</param>
 /// <param name="HessianCondition">λ_max/λ_min of the condensed Hessian.</param>
 /// <param name="ClosedLoopSpectralRadius">ρ(A − BK) under the receding-horizon gain K.</param>
-/// <param name="Warnings">Plain-language warnings.</param>
+/// <param name="Warnings">What to read before closing a loop, as codes with their numbers.</param>
 public sealed record ModelDiagnostics(
     int ControllabilityRank,
     bool Controllable,
@@ -23,7 +23,7 @@ public sealed record ModelDiagnostics(
     int? RiccatiIterations,
     double HessianCondition,
     double ClosedLoopSpectralRadius,
-    IReadOnlyList<string> Warnings);
+    IReadOnlyList<Warning> Warnings);
 
 /// <summary>The receding-horizon feedback u_0 = −K x_0 (regulation, no previous input) and its closed loop.</summary>
 /// <param name="K">m×n gain, row-major.</param>

@@ -50,8 +50,8 @@ public sealed class Plan
     /// <summary>Largest amount by which a predicted output exceeds a soft output limit (0 when none is violated).</summary>
     public double MaxOutputViolation { get; internal set; }
 
-    /// <summary>Plain-language notes on anything that is not a clean optimum.</summary>
-    public IReadOnlyList<string> Warnings { get; internal set; } = [];
+    /// <summary>Anything that is not a clean optimum, as codes with their numbers; a status other than optimal always has one.</summary>
+    public IReadOnlyList<Warning> Warnings { get; internal set; } = [];
 
     public ReadOnlySpan<double> Input(int step) => Inputs.AsSpan(step * InputCount, InputCount);
 

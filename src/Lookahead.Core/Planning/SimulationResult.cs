@@ -11,4 +11,4 @@ public sealed record SimulationResult(
     double[][]? References,
     double TotalCost,
     int NonOptimalSteps,
-    IReadOnlyList<string> Warnings);
+    IReadOnlyList<Warning> Warnings);

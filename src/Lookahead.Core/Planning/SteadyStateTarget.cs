@@ -6,4 +6,8 @@ namespace Lookahead.Core.Planning;
 /// <param name="Output">C x_s (p).</param>
 /// <param name="ReferenceReached">True when ‖C x_s − r‖∞ ≤ 1e-9·max(1, ‖r‖∞).</param>
 /// <param name="LimitedByInputLimits">True when the hard input limits moved the target away from the unconstrained one.</param>
-public sealed record SteadyStateTarget(double[] State, double[] Input, double[] Output, bool ReferenceReached, bool LimitedByInputLimits = false);
+public sealed record SteadyStateTarget(double[] State, double[] Input, double[] Output, bool ReferenceReached, bool LimitedByInputLimits = false)
+{
+    /// <summary>‖C x_s − r‖∞: how far the steady output stays from the setpoint.</summary>
+    public double OutputError { get; init; }
+}

@@ -156,7 +156,7 @@ public class ConstrainedPlanTests
         var plan = model.Plan(request);
         Assert.Equal(PlanStatus.Optimal, plan.Status);
         Assert.True(plan.MaxOutputViolation > 0.1);
-        Assert.Contains(plan.Warnings, w => w.Contains("soft limits"));
+        Assert.Contains(plan.Warnings, w => w.Code == WarningCode.SoftOutputLimitExceeded && w.Output == 0 && Math.Abs(w.Amount!.Value - plan.MaxOutputViolation) < 1e-12);
         Kkt.CheckPlan(model, request, plan, model.ConstrainedWithoutPrevious!.AutomaticLinearWeight * 1e6, Slacks(model, plan), 1e-6);
     }
 
@@ -166,7 +166,7 @@ public class ConstrainedPlanTests
         var model = DoubleIntegrator(new LimitsSpec(InputMin: [-1.0], InputMax: [1.0], InputRateMin: [-0.2], InputRateMax: [0.2]));
         var plan = model.Plan(new PlanRequest([1.0, 0.0], PreviousInput: [1.8]));
         Assert.Equal(PlanStatus.Infeasible, plan.Status);
-        Assert.Contains(plan.Warnings, w => w.Contains("input(s) 0"));
+        Assert.Contains(plan.Warnings, w => w.Code == WarningCode.FirstMoveRateRelaxed && w.Input == 0);
         Assert.All(plan.Inputs, u => Assert.InRange(u, -1.0, 1.0));
     }
 
@@ -179,7 +179,7 @@ public class ConstrainedPlanTests
         var plan = model.Plan(new PlanRequest([5.0, -1.0]));
         Assert.Equal(PlanStatus.IterationLimit, plan.Status);
         Assert.All(plan.Inputs, u => Assert.InRange(u, -0.1, 0.1));
-        Assert.Contains(plan.Warnings, w => w.Contains("iteration cap"));
+        Assert.Contains(plan.Warnings, w => w.Code == WarningCode.IterationLimit && w.Count == 2);
     }
 
     [Fact]
@@ -193,6 +193,6 @@ public class ConstrainedPlanTests
         Assert.False(plan.Target.ReferenceReached);
         Assertions.CloseScalar(2.0, plan.Target.Input[0], 1e-7);
         Assertions.CloseScalar(2.0, plan.Target.State[0], 1e-7);
-        Assert.Contains(plan.Warnings, w => w.Contains("cannot be held within the input limits"));
+        Assert.Contains(plan.Warnings, w => w.Code == WarningCode.SetpointOutsideInputLimits && Math.Abs(w.Amount!.Value - 3.0) < 1e-6);
     }
 }

@@ -22,7 +22,7 @@ public class DiagnosticsTests
         Assert.InRange(model.Diagnostics.ClosedLoopSpectralRadius, 0, 0.999);
         Assert.Equal(model.Diagnostics.ClosedLoopSpectralRadius, model.Gain.SpectralRadius);
         Assert.Equal(2, model.Gain.ClosedLoopEigenvalues.Length);
-        Assert.DoesNotContain(model.Diagnostics.Warnings, w => w.Contains("unstable"));
+        Assert.DoesNotContain(model.Diagnostics.Warnings, w => w.Code == WarningCode.ClosedLoopUnstable);
     }
 
     [Fact]
@@ -32,7 +32,7 @@ public class DiagnosticsTests
         Assert.Equal(1, model.Diagnostics.ControllabilityRank);
         Assert.False(model.Diagnostics.Controllable);
         Assert.True(model.Diagnostics.Stabilisable);
-        Assert.Contains(model.Diagnostics.Warnings, w => w.Contains("not controllable"));
+        Assert.Contains(model.Diagnostics.Warnings, w => w.Code == WarningCode.NotControllable && w.Count == 1);
     }
 
     // Common practice: an unstable plant, a one-step horizon, a tiny stage terminal weight and an expensive
@@ -42,7 +42,7 @@ public class DiagnosticsTests
     {
         var model = ModelCompiler.Compile(TestModels.Discrete([[1.2]], [[1.0]], 1, [0.01], [10.0], TerminalWeightSpec.Stage));
         Assert.True(model.Diagnostics.ClosedLoopSpectralRadius >= 1);
-        Assert.Contains(model.Diagnostics.Warnings, w => w.Contains("closed loop unstable"));
+        Assert.Contains(model.Diagnostics.Warnings, w => w.Code == WarningCode.ClosedLoopUnstable && w.Amount >= 1);
     }
 
     [Fact]
@@ -50,7 +50,7 @@ public class DiagnosticsTests
     {
         var model = ModelCompiler.Compile(TestModels.Discrete([[1.1, 0.0], [0.0, 0.5]], [[1.0], [1.0]], 5, [1.0], [1.0], TerminalWeightSpec.Stage, c: [[0.0, 1.0]]));
         Assert.False(model.Diagnostics.Detectable);
-        Assert.Contains(model.Diagnostics.Warnings, w => w.Contains("not seen by the output weight"));
+        Assert.Contains(model.Diagnostics.Warnings, w => w.Code == WarningCode.ModeUnseenByCost);
     }
 
     [Fact]
@@ -60,7 +60,7 @@ public class DiagnosticsTests
             TestModels.Discrete([[1.1, 0.2, 0.0], [0.0, 0.9, 0.3], [0.1, 0.0, 0.7]], [[0.0], [0.5], [1.0]], 60, [1.0, 1.0, 1.0], [0.1]),
             new CompileOptions { IllConditionedThreshold = 1e6 });
         Assert.True(model.Diagnostics.HessianCondition > 1e6);
-        Assert.Contains(model.Diagnostics.Warnings, w => w.Contains("ill-conditioned"));
+        Assert.Contains(model.Diagnostics.Warnings, w => w.Code == WarningCode.HessianIllConditioned && w.Amount > 1e6);
     }
 
     // Common practice: the condition number of a diagonal Hessian is the ratio of its extreme entries.

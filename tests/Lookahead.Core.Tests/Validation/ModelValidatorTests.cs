@@ -126,6 +126,6 @@ public class ModelValidatorTests
         // The same plant with the stage weight compiles, and the diagnostics say what is wrong.
         var model = ModelCompiler.Compile(document with { Cost = document.Cost with { TerminalWeight = TerminalWeightSpec.Stage } });
         Assert.False(model.Diagnostics.Stabilisable);
-        Assert.Contains(model.Diagnostics.Warnings, w => w.Contains("not stabilisable"));
+        Assert.Contains(model.Diagnostics.Warnings, w => w.Code == WarningCode.NotStabilisable);
     }
 }

@@ -1,0 +1,137 @@
+using Lookahead.Api.Catalog;
+using Lookahead.Api.Charts;
+using Lookahead.Api.Http;
+using Lookahead.Api.Models;
+using Lookahead.Api.Plans;
+using Lookahead.Api.Storage;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace Lookahead.Api.Aliases;
+
+/// <summary>Named pointers to models, so a station can follow a re-tuned model without reconfiguration.</summary>
+public static class AliasesApi
+{
+    public static IServiceCollection AddAliases(this IServiceCollection services) => services.AddJsonContext(AliasesJsonContext.Default);
+
+    public static RouteGroupBuilder MapAliasesApi(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);
+
+        group.MapPut("/{name}", PutAsync)
+            .WithName("SetAlias")
+            .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
+            .Accepts<AliasRequest>("application/json")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound)
+            .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
+
+        group.MapGet("/{name}", GetAsync)
+            .WithName("GetAlias")
+            .WithSummary("An alias's current model and its history with timestamps")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound);
+
+        group.MapDelete("/{name}", DeleteAsync)
+            .WithName("DeleteAlias")
+            .WithSummary("Delete an alias and its history (the model stays)")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound);
+
+        group.MapPost("/{name}/plan", PlanAsync)
+            .WithName("PlanForAlias")
+            .WithSummary("Plan with the model the alias points at now; the answer names that model")
+            .Accepts<PlanRequestDto>("application/json")
+            .WithMetadata(new SvgAlternativeMetadata())
+            .ProducesBodyProblemsForModel();
+
+        return group;
+    }
+
+    public static async Task<Results<Created<AliasResponse>, Ok<AliasResponse>, ProblemHttpResult>> PutAsync(
+        string name, HttpRequest request, RequestBodyReader reader, IModelStore store, TimeProvider time, CancellationToken cancellationToken)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return AliasProblems.MalformedAlias(name);
+        }
+
+        var body = await reader.ReadJsonAsync<AliasRequest>(request, cancellationToken);
+        if (body.Problem is not null)
+        {
+            return body.Problem;
+        }
+
+        string? modelId = body.Value!.ModelId;
+        if (modelId is null)
+        {
+            return ApiProblems.Validation("modelId", "is required");
+        }
+
+        if (!ModelId.IsWellFormed(modelId))
+        {
+            return ModelProblems.MalformedId(modelId, "modelId");
+        }
+
+        var outcome = await store.SetAliasAsync(name, modelId, time.GetUtcNow(), cancellationToken);
+        return outcome.Status switch
+        {
+            AliasStatus.ModelNotFound => ModelProblems.ModelNotFound(modelId, "modelId"),
+            AliasStatus.Created => TypedResults.Created($"/v1/aliases/{name}", ToResponse(outcome.Alias!)),
+            _ => TypedResults.Ok(ToResponse(outcome.Alias!)),
+        };
+    }
+
+    public static async Task<Results<Ok<AliasResponse>, ProblemHttpResult>> GetAsync(string name, IModelStore store, CancellationToken cancellationToken)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return AliasProblems.MalformedAlias(name);
+        }
+
+        var alias = await store.GetAliasAsync(name, cancellationToken);
+        return alias is null ? AliasProblems.AliasNotFound(name) : TypedResults.Ok(ToResponse(alias));
+    }
+
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IModelStore store, CancellationToken cancellationToken)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return AliasProblems.MalformedAlias(name);
+        }
+
+        return await store.DeleteAliasAsync(name, cancellationToken) ? TypedResults.NoContent() : AliasProblems.AliasNotFound(name);
+    }
+
+    public static async Task<Results<Ok<PlanResponse>, ContentHttpResult, ProblemHttpResult>> PlanAsync(
+        string name, IModelStore store, [AsParameters] PlanServices services, string? format = null)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return AliasProblems.MalformedAlias(name);
+        }
+
+        if (!ResponseFormats.TryParse(format, out var responseFormat, out var formatProblem))
+        {
+            return formatProblem!;
+        }
+
+        // Resolved on every request so a re-pointed alias takes effect at once, on every instance.
+        var alias = await store.GetAliasAsync(name, services.CancellationToken);
+        if (alias is null)
+        {
+            return AliasProblems.AliasNotFound(name);
+        }
+
+        var model = await services.Catalog.GetCompiledAsync(alias.ModelId);
+        if (model is null)
+        {
+            return ModelProblems.ModelNotFound(alias.ModelId);
+        }
+
+        services.Log.Set("Alias", name);
+        return await PlansApi.AnswerAsync(alias.ModelId, name, model, responseFormat, services);
+    }
+
+    private static AliasResponse ToResponse(AliasRecord alias) =>
+        new(alias.Name, alias.ModelId, alias.UpdatedAt, alias.History.Select(h => new AliasHistoryEntry(h.ModelId, h.SetAt)).ToList());
+}

@@ -1,0 +1,47 @@
+using System.Text.Json.Serialization;
+
+namespace Lookahead.Api.Catalog;
+
+/// <summary>A plant-and-cost model as sent by a client. Every field is optional here so that a missing one is reported by path, not by the parser.</summary>
+public sealed record ModelDocumentDto(
+    string? Name,
+    PlantDto? Plant,
+    CostDto? Cost,
+    LimitsDto? Limits,
+    LabelsDto? Labels);
+
+/// <summary>x(k+1) = A x(k) + B u(k) (or x' = Ax + Bu when continuous), y = C x. Matrices are arrays of rows.</summary>
+public sealed record PlantDto(
+    double[][]? A,
+    double[][]? B,
+    double[][]? C,
+    double? SampleTime,
+    string? TimeDomain);
+
+public sealed record CostDto(
+    int? Horizon,
+    WeightDto? OutputWeight,
+    WeightDto? InputWeight,
+    WeightDto? InputRateWeight,
+    TerminalWeightDto? TerminalWeight);
+
+/// <summary>Per input (m) or per output (p); a null entry is unbounded.</summary>
+public sealed record LimitsDto(
+    double?[]? InputMin,
+    double?[]? InputMax,
+    double?[]? InputRateMin,
+    double?[]? InputRateMax,
+    double?[]? OutputMin,
+    double?[]? OutputMax,
+    double[]? OutputViolationWeight)
+{
+    [JsonIgnore]
+    public bool IsEmpty => InputMin is null && InputMax is null && InputRateMin is null && InputRateMax is null
+        && OutputMin is null && OutputMax is null && OutputViolationWeight is null;
+}
+
+public sealed record LabelsDto(string[]? States, string[]? Inputs, string[]? Outputs)
+{
+    [JsonIgnore]
+    public bool IsEmpty => States is null && Inputs is null && Outputs is null;
+}

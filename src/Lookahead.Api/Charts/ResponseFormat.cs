@@ -1,0 +1,34 @@
+using Lookahead.Api.Http;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace Lookahead.Api.Charts;
+
+/// <summary>?format= on plan and simulate: JSON (default) or an SVG chart.</summary>
+public enum ResponseFormat
+{
+    Json,
+    Svg,
+}
+
+public static class ResponseFormats
+{
+    public const string SvgContentType = "image/svg+xml";
+
+    public static bool TryParse(string? value, out ResponseFormat format, out ProblemHttpResult? problem)
+    {
+        problem = null;
+        switch (value)
+        {
+            case null or "" or "json":
+                format = ResponseFormat.Json;
+                return true;
+            case "svg":
+                format = ResponseFormat.Svg;
+                return true;
+            default:
+                format = ResponseFormat.Json;
+                problem = ApiProblems.Validation("format", "must be 'json' or 'svg'");
+                return false;
+        }
+    }
+}

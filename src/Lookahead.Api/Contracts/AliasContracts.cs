@@ -1,9 +1,0 @@
-namespace Lookahead.Api.Contracts;
-
-/// <summary>Body of PUT /v1/aliases/{name}.</summary>
-public sealed record AliasRequest(string? ModelId);
-
-/// <summary>An alias, its current target and every target it had, oldest first.</summary>
-public sealed record AliasResponse(string Name, string ModelId, DateTimeOffset UpdatedAt, IReadOnlyList<AliasHistoryEntry> History);
-
-public sealed record AliasHistoryEntry(string ModelId, DateTimeOffset SetAt);

@@ -1,4 +1,0 @@
-namespace Lookahead.Api.Contracts;
-
-/// <summary>Body of POST …/plan: measured state x₀ (n), optional setpoint r (p) and the input now applied u₋₁ (m).</summary>
-public sealed record PlanRequestDto(double[]? State, double[]? Reference, double[]? PreviousInput);

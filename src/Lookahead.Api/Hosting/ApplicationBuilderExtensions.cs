@@ -1,0 +1,43 @@
+using Microsoft.AspNetCore.Diagnostics.HealthChecks;
+using Prometheus;
+using Serilog;
+using Serilog.Events;
+
+namespace Lookahead.Api.Hosting;
+
+/// <summary>The middleware pipeline and the endpoint map.</summary>
+public static class ApplicationBuilderExtensions
+{
+    public static WebApplication UseLookaheadPipeline(this WebApplication app)
+    {
+        app.UseExceptionHandler();
+        app.UseStatusCodePages();
+        app.UseSerilogRequestLogging(o =>
+        {
+            o.MessageTemplate = "HTTP {RequestMethod} {RequestPath} responded {StatusCode} in {Elapsed:0.000} ms";
+            o.GetLevel = (context, _, exception) =>
+                exception is not null || context.Response.StatusCode >= 500 ? LogEventLevel.Error
+                : context.Request.Path.StartsWithSegments("/health") || context.Request.Path.StartsWithSegments("/metrics") ? LogEventLevel.Verbose
+                : LogEventLevel.Information;
+        });
+        var registry = app.Services.GetRequiredService<CollectorRegistry>();
+        app.UseHttpMetrics(o => o.SetMetricFactory(Metrics.WithCustomRegistry(registry)));
+        app.UseRouting();
+        app.UseRateLimiter();
+        app.UseSwagger();
+        app.UseSwaggerUI(o => o.SwaggerEndpoint($"/swagger/{OpenApiExtensions.DocumentName}/swagger.json", "Lookahead v1"));
+        return app;
+    }
+
+    /// <summary>Liveness, readiness and the metrics scrape; the features map their own routes.</summary>
+    public static WebApplication MapHostingEndpoints(this WebApplication app)
+    {
+        app.MapHealthChecks("/health/live", new HealthCheckOptions { Predicate = _ => false })
+            .WithName("Live").WithSummary("The process is up (checks nothing else)").WithTags("Health");
+        app.MapHealthChecks("/health/ready", new HealthCheckOptions { Predicate = check => check.Tags.Contains("ready") })
+            .WithName("Ready").WithSummary("The store answers").WithTags("Health");
+        app.MapMetrics("/metrics", app.Services.GetRequiredService<CollectorRegistry>())
+            .WithName("Metrics").WithSummary("Prometheus metrics").WithTags("Health");
+        return app;
+    }
+}

@@ -1,0 +1,20 @@
+using System.ComponentModel.DataAnnotations;
+using Lookahead.Api.Catalog;
+
+namespace Lookahead.Api.Hosting;
+
+/// <summary>The demo model registered at start ("Demo" section).</summary>
+public sealed class DemoOptions
+{
+    public const string Section = "Demo";
+
+    public bool Enabled { get; set; } = true;
+
+    [Required]
+    [RegularExpression(AliasName.Pattern)]
+    public string Alias { get; set; } = "cold-store-demo";
+
+    /// <summary>Relative paths are taken from the application's folder.</summary>
+    [Required]
+    public string DocumentPath { get; set; } = "Demo/cold-store.json";
+}

@@ -1,0 +1,133 @@
+using System.Threading.RateLimiting;
+using Lookahead.Api.Catalog;
+using Lookahead.Api.Http;
+using Lookahead.Api.Storage;
+using Microsoft.AspNetCore.Http.Json;
+using Microsoft.AspNetCore.Server.Kestrel.Core;
+using Microsoft.Extensions.Options;
+using Prometheus;
+
+namespace Lookahead.Api.Hosting;
+
+/// <summary>Service registrations, grouped by concern.</summary>
+public static class ServiceCollectionExtensions
+{
+    /// <summary>
+    /// Everything the features stand on: options, JSON, problems, rate limiting, OpenAPI, metrics registry, store,
+    /// catalog, demo and health checks. Features register their own services (Add… in their folders).
+    /// </summary>
+    public static IServiceCollection AddLookaheadHosting(this IServiceCollection services)
+    {
+        // Requests already run in parallel; a registration's compile must not take every core from running
+        // plans through MathNet's own parallel products, so the numeric library stays on the calling thread.
+        MathNet.Numerics.Control.UseSingleThread();
+        services.AddLookaheadOptions();
+        services.AddLookaheadJson();
+        services.AddLookaheadStore();
+        services.AddLookaheadProblems();
+        services.AddLookaheadRateLimiting();
+        services.AddLookaheadOpenApi();
+        services.AddSingleton(TimeProvider.System);
+
+        // One registry per application instance, so two hosts in one process (as in tests) never share counters.
+        services.AddSingleton(_ => Metrics.NewCustomRegistry());
+        services.AddSingleton<RequestBodyReader>();
+        services.AddCatalog();
+        services.AddHostedService<DemoModelSeeder>();
+        services.AddHealthChecks().AddCheck<StoreHealthCheck>("store", tags: ["ready"]);
+        return services;
+    }
+
+    private static void AddLookaheadOptions(this IServiceCollection services)
+    {
+        services.AddOptions<StoreOptions>().BindConfiguration(StoreOptions.Section).ValidateDataAnnotations()
+            .Validate(o => o.Provider != "postgres" || !string.IsNullOrWhiteSpace(o.PostgresConnectionString), "Store:PostgresConnectionString is required when Store:Provider is 'postgres'")
+            .ValidateOnStart();
+        services.AddOptions<RequestLimitsOptions>().BindConfiguration(RequestLimitsOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<RateLimitingOptions>().BindConfiguration(RateLimitingOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+
+        // Kestrel enforces the ordinary body limit itself; replay raises it per request.
+        services.AddOptions<KestrelServerOptions>().Configure<IOptions<RequestLimitsOptions>>((kestrel, limits) =>
+        {
+            kestrel.Limits.MaxRequestBodySize = limits.Value.MaxBodyBytes;
+            kestrel.AddServerHeader = false;
+        });
+    }
+
+    private static void AddLookaheadJson(this IServiceCollection services)
+    {
+        services.AddOptions<JsonOptions>().Configure<IOptions<RequestLimitsOptions>>((json, limits) => ApiJson.Configure(json.SerializerOptions, limits.Value));
+        services.AddJsonContext(HttpJsonContext.Default);
+
+        // Query and route binding failures become problem documents instead of bare 400s.
+        services.Configure<RouteHandlerOptions>(o => o.ThrowOnBadRequest = true);
+    }
+
+    private static void AddLookaheadStore(this IServiceCollection services)
+    {
+        services.AddSingleton<IModelStore>(sp =>
+        {
+            var options = sp.GetRequiredService<IOptions<StoreOptions>>().Value;
+            if (options.Provider == "postgres")
+            {
+                return new PostgresModelStore(options.PostgresConnectionString!, options.PostgresSchema);
+            }
+
+            var environment = sp.GetRequiredService<IHostEnvironment>();
+            var path = Path.IsPathRooted(options.SqlitePath) ? options.SqlitePath : Path.Combine(environment.ContentRootPath, options.SqlitePath);
+            return new SqliteModelStore(path);
+        });
+    }
+
+    private static void AddLookaheadProblems(this IServiceCollection services)
+    {
+        services.AddProblemDetails(o => o.CustomizeProblemDetails = context =>
+        {
+            var problem = context.ProblemDetails;
+            problem.Instance ??= context.HttpContext.Request.Path;
+            problem.Extensions["traceId"] = context.HttpContext.TraceIdentifier;
+            if (!problem.Extensions.ContainsKey("errors"))
+            {
+                // Status-code pages (unknown route, wrong method) carry the same shape as every other problem.
+                problem.Extensions["errors"] = new List<ProblemError>();
+                problem.Type = ProblemTypes.Http;
+            }
+        });
+        services.AddExceptionHandler<ProblemExceptionHandler>();
+    }
+
+    private static void AddLookaheadRateLimiting(this IServiceCollection services)
+    {
+        services.AddRateLimiter(o =>
+        {
+            o.RejectionStatusCode = StatusCodes.Status429TooManyRequests;
+            o.AddPolicy(RateLimitPolicy.Name, context =>
+            {
+                var settings = context.RequestServices.GetRequiredService<IOptions<RateLimitingOptions>>().Value;
+                string client = context.Connection.RemoteIpAddress?.ToString() ?? "unknown";
+                return RateLimitPartition.GetFixedWindowLimiter(client, _ => new FixedWindowRateLimiterOptions
+                {
+                    PermitLimit = settings.PermitLimit,
+                    Window = TimeSpan.FromSeconds(settings.WindowSeconds),
+                    QueueLimit = settings.QueueLimit,
+                    QueueProcessingOrder = QueueProcessingOrder.OldestFirst,
+                });
+            });
+            o.OnRejected = async (context, cancellationToken) =>
+            {
+                var problems = context.HttpContext.RequestServices.GetRequiredService<IProblemDetailsService>();
+                if (context.Lease.TryGetMetadata(MetadataName.RetryAfter, out var retryAfter))
+                {
+                    context.HttpContext.Response.Headers.RetryAfter = ((int)Math.Ceiling(retryAfter.TotalSeconds)).ToString(System.Globalization.CultureInfo.InvariantCulture);
+                }
+
+                await problems.WriteAsync(new ProblemDetailsContext
+                {
+                    HttpContext = context.HttpContext,
+                    ProblemDetails = ApiProblems.Create(StatusCodes.Status429TooManyRequests, ProblemTypes.TooManyRequests, "Too many requests", "This client has used its request allowance for now; retry after the interval in Retry-After."),
+                });
+            };
+        });
+    }
+}

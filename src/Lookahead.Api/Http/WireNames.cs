@@ -1,0 +1,43 @@
+using Lookahead.Core.Planning;
+
+namespace Lookahead.Api.Http;
+
+/// <summary>The wire names of the core's closed sets: plan statuses, limit kinds and warning codes.</summary>
+public static class WireNames
+{
+    public static string Status(PlanStatus status) => status switch
+    {
+        PlanStatus.Optimal => "optimal",
+        PlanStatus.IterationLimit => "iteration-limit",
+        PlanStatus.Infeasible => "infeasible",
+        _ => throw new ArgumentOutOfRangeException(nameof(status), status, "no wire name"),
+    };
+
+    public static string Limit(LimitKind kind) => kind switch
+    {
+        LimitKind.InputMin => "input-min",
+        LimitKind.InputMax => "input-max",
+        LimitKind.InputRateMin => "input-rate-min",
+        LimitKind.InputRateMax => "input-rate-max",
+        LimitKind.OutputMin => "output-min",
+        LimitKind.OutputMax => "output-max",
+        _ => throw new ArgumentOutOfRangeException(nameof(kind), kind, "no wire name"),
+    };
+
+    public static string Warning(WarningCode code) => code switch
+    {
+        WarningCode.SetpointUnreachable => "setpoint-unreachable",
+        WarningCode.SetpointOutsideInputLimits => "setpoint-outside-input-limits",
+        WarningCode.FirstMoveRateRelaxed => "first-move-rate-relaxed",
+        WarningCode.IterationLimit => "iteration-limit",
+        WarningCode.LimitsContradict => "limits-contradict",
+        WarningCode.SoftOutputLimitExceeded => "soft-output-limit-exceeded",
+        WarningCode.StepsNotOptimal => "steps-not-optimal",
+        WarningCode.ClosedLoopUnstable => "closed-loop-unstable",
+        WarningCode.NotStabilisable => "not-stabilisable",
+        WarningCode.NotControllable => "not-controllable",
+        WarningCode.ModeUnseenByCost => "mode-unseen-by-cost",
+        WarningCode.HessianIllConditioned => "hessian-ill-conditioned",
+        _ => throw new ArgumentOutOfRangeException(nameof(code), code, "no wire name"),
+    };
+}

@@ -1,0 +1,150 @@
+using Lookahead.Api.Catalog;
+using Lookahead.Api.Http;
+using Lookahead.Api.Storage;
+using Microsoft.AspNetCore.Http.HttpResults;
+using Serilog;
+
+namespace Lookahead.Api.Models;
+
+/// <summary>Registering, reading, listing and deleting models, and their receding-horizon gain.</summary>
+public static class ModelsApi
+{
+    public const int DefaultPageSize = 50;
+    public const int MaxPageSize = 500;
+
+    public static IServiceCollection AddModels(this IServiceCollection services) => services.AddJsonContext(ModelsJsonContext.Default);
+
+    public static RouteGroupBuilder MapModelsApi(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);
+
+        group.MapPost("", RegisterAsync)
+            .WithName("RegisterModel")
+            .WithSummary("Register a plant-and-cost model; its id is the SHA-256 of its canonical form")
+            .Accepts<ModelDocumentDto>("application/json")
+            .ProducesBodyProblems();
+
+        group.MapGet("", ListAsync)
+            .WithName("ListModels")
+            .WithSummary("List registered models in registration order, a page at a time")
+            .ProducesProblem(StatusCodes.Status400BadRequest);
+
+        group.MapGet("/{id}", GetAsync)
+            .WithName("GetModel")
+            .WithSummary("A registered model's document, dimensions and diagnostics")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound);
+
+        group.MapDelete("/{id}", DeleteAsync)
+            .WithName("DeleteModel")
+            .WithSummary("Delete a model (refused while an alias points at it)")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound)
+            .ProducesProblem(StatusCodes.Status409Conflict);
+
+        group.MapGet("/{id}/gain", GetGainAsync)
+            .WithName("GetModelGain")
+            .WithSummary("The receding-horizon gain K (u0 = −K x0), closed-loop eigenvalues and spectral radius")
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status404NotFound);
+
+        return group;
+    }
+
+    public static async Task<Results<Created<ModelRegistrationResponse>, Ok<ModelRegistrationResponse>, ProblemHttpResult>> RegisterAsync(
+        HttpRequest request, RequestBodyReader reader, ModelCatalog catalog, IDiagnosticContext log, CancellationToken cancellationToken)
+    {
+        var body = await reader.ReadJsonAsync<ModelDocumentDto>(request, cancellationToken);
+        if (body.Problem is not null)
+        {
+            return body.Problem;
+        }
+
+        var registration = await catalog.RegisterAsync(body.Value!, cancellationToken);
+        if (!registration.Accepted)
+        {
+            return ApiProblems.Validation(registration.Errors, "The model was not registered; see errors.");
+        }
+
+        log.Set("ModelId", registration.Id);
+        var response = ModelResponses.Registration(registration.Id!, registration.Model!, registration.Created);
+        return registration.Created
+            ? TypedResults.Created($"/v1/models/{registration.Id}", response)
+            : TypedResults.Ok(response);
+    }
+
+    public static async Task<Results<Ok<ModelPage>, ProblemHttpResult>> ListAsync(ModelCatalog catalog, CancellationToken cancellationToken, int? offset = null, int? limit = null)
+    {
+        var errors = new List<ProblemError>();
+        if (offset < 0)
+        {
+            errors.Add(new("offset", "must be 0 or more"));
+        }
+
+        if (limit is < 1 or > MaxPageSize)
+        {
+            errors.Add(new("limit", $"must be between 1 and {MaxPageSize}"));
+        }
+
+        if (errors.Count > 0)
+        {
+            return ApiProblems.Validation(errors);
+        }
+
+        int from = offset ?? 0;
+        int size = limit ?? DefaultPageSize;
+        var listing = await catalog.ListAsync(from, size, cancellationToken);
+        var items = listing.Items
+            .Select(s => new ModelSummary(s.Id, s.Name, ModelResponses.Dimensions(s.States, s.Inputs, s.Outputs, s.Horizon), s.RegisteredAt))
+            .ToList();
+        return TypedResults.Ok(new ModelPage(items, from, size, listing.Total));
+    }
+
+    public static async Task<Results<Ok<ModelDetailsResponse>, ProblemHttpResult>> GetAsync(string id, ModelCatalog catalog, CancellationToken cancellationToken)
+    {
+        if (!ModelId.IsWellFormed(id))
+        {
+            return ModelProblems.MalformedId(id);
+        }
+
+        var found = await catalog.GetStoredAsync(id, cancellationToken);
+        var model = found is null ? null : await catalog.GetCompiledAsync(id);
+        if (found is not { } stored || model is null)
+        {
+            return ModelProblems.ModelNotFound(id);
+        }
+
+        bool continuous = ModelResponses.IsContinuous(model);
+        return TypedResults.Ok(new ModelDetailsResponse(
+            id,
+            stored.Stored.Summary.RegisteredAt,
+            stored.Canonical.Dto,
+            ModelResponses.Dimensions(model),
+            continuous ? model.DiscreteA : null,
+            continuous ? model.DiscreteB : null,
+            ModelResponses.Diagnostics(model.Diagnostics),
+            WarningText.ToDtos(model.Diagnostics.Warnings)));
+    }
+
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string id, ModelCatalog catalog, CancellationToken cancellationToken)
+    {
+        if (!ModelId.IsWellFormed(id))
+        {
+            return ModelProblems.MalformedId(id);
+        }
+
+        var outcome = await catalog.DeleteAsync(id, cancellationToken);
+        return outcome.Status switch
+        {
+            DeleteStatus.Deleted => TypedResults.NoContent(),
+            DeleteStatus.ReferencedByAlias => ModelProblems.ReferencedByAlias(id, outcome.BlockingAlias!),
+            _ => ModelProblems.ModelNotFound(id),
+        };
+    }
+
+    public static async Task<Results<Ok<GainResponse>, ProblemHttpResult>> GetGainAsync(string id, ModelCatalog catalog)
+    {
+        var (model, problem) = await ModelLookup.FindAsync(id, catalog);
+        return problem is not null ? problem : TypedResults.Ok(ModelResponses.Gain(id, model!));
+    }
+}

@@ -1,0 +1,77 @@
+using System.Diagnostics;
+using Lookahead.Api.Http;
+using Lookahead.Core.Planning;
+using Lookahead.Core.Validation;
+using Prometheus;
+
+namespace Lookahead.Api.Plans;
+
+/// <summary>
+/// The one way a plan is run, for /plan, alias plans and every replay row: the core checks the request (once),
+/// solves it, and the runner times the solve alone, counts it, and turns the core's refusal into field errors.
+/// Thread-safe: replay calls it from several threads on one compiled model.
+/// </summary>
+public sealed class PlanRunner
+{
+    private static readonly PlanStatus[] Statuses = Enum.GetValues<PlanStatus>();
+    private readonly Histogram.Child[] durations;
+    private readonly Counter.Child[,] counts;
+
+    public PlanRunner(PlanMetrics metrics)
+    {
+        var routes = Enum.GetValues<PlanRoute>();
+        durations = new Histogram.Child[routes.Length];
+        counts = new Counter.Child[routes.Length, Statuses.Length];
+        foreach (var route in routes)
+        {
+            durations[(int)route] = metrics.Duration.WithLabels(Label(route));
+            foreach (var status in Statuses)
+            {
+                counts[(int)route, (int)status] = metrics.Plans.WithLabels(Label(route), WireNames.Status(status));
+            }
+        }
+    }
+
+    /// <summary>Plans <paramref name="call"/> unless parsing already found errors; afterwards either Outcome or Errors is set.</summary>
+    public void Run(CompiledModel model, PlanCall call, PlanDepth depth, PlanRoute route)
+    {
+        if (call.Errors.Count > 0)
+        {
+            return;
+        }
+
+        long started = Stopwatch.GetTimestamp();
+        try
+        {
+            var request = call.ToRequest();
+            if (depth == PlanDepth.Full)
+            {
+                var plan = model.Plan(request);
+                call.Plan = plan;
+                plan.Input(0).CopyTo(call.FirstMove);
+                call.Outcome = new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
+            }
+            else
+            {
+                // Historians mostly want u_0: the first-move path skips the trajectory when the model allows it.
+                call.Outcome = model.FirstMove(request, call.FirstMove);
+            }
+        }
+        catch (ModelValidationException ex)
+        {
+            foreach (var error in ex.Errors)
+            {
+                call.AddError(error.Path, error.Reason);
+            }
+
+            return;
+        }
+
+        var elapsed = Stopwatch.GetElapsedTime(started);
+        call.SolveMicroseconds = elapsed.TotalMicroseconds;
+        durations[(int)route].Observe(elapsed.TotalSeconds);
+        counts[(int)route, (int)call.Outcome.Value.Status].Inc();
+    }
+
+    private static string Label(PlanRoute route) => route == PlanRoute.Replay ? "replay" : "plan";
+}

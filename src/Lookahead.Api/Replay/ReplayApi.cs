@@ -1,0 +1,157 @@
+using System.IO.Pipelines;
+using Lookahead.Api.Http;
+using Lookahead.Api.Models;
+using Microsoft.AspNetCore.Http.Features;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace Lookahead.Api.Replay;
+
+/// <summary>
+/// Replay for historians: many states in, one result per state out, streamed in both directions, as JSON,
+/// NDJSON or CSV (chosen by Content-Type; the answer has the same type).
+/// </summary>
+public static class ReplayApi
+{
+    public const string NdjsonContentType = "application/x-ndjson";
+    public const string CsvContentType = "text/csv";
+    public const string JsonContentType = "application/json";
+
+    public static IServiceCollection AddReplay(this IServiceCollection services)
+    {
+        services.AddOptions<ReplayOptions>().BindConfiguration(ReplayOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddSingleton<ReplayMetrics>();
+        services.AddSingleton<ReplayRunner>();
+        return services;
+    }
+
+    public static RouteGroupBuilder MapReplayApi(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/v1/models").WithTags("Replay").RequireRateLimiting(RateLimitPolicy.Name);
+
+        group.MapPost("/{id}/plans", ReplayAsync)
+            .WithName("ReplayPlans")
+            .WithSummary("Plan every state of a JSON, NDJSON or CSV upload; results stream back in input order")
+            .Accepts<ReplayRequest>(JsonContentType, NdjsonContentType, CsvContentType)
+            .Produces<ReplayResponse>(StatusCodes.Status200OK, JsonContentType, NdjsonContentType, CsvContentType)
+            .ProducesBodyProblemsForModel();
+
+        return group;
+    }
+
+    public static async Task<Results<EmptyHttpResult, ProblemHttpResult>> ReplayAsync(
+        string id, [AsParameters] ReplayServices services, string? detail = null)
+    {
+        var (context, catalog, runner, limits, log, cancellationToken) = services;
+        var request = context.Request;
+        string? format = FormatOf(request.ContentType);
+        if (format is null)
+        {
+            return ApiProblems.UnsupportedMediaType(request.ContentType, JsonContentType, NdjsonContentType, CsvContentType);
+        }
+
+        var queryDetail = ReplayDetail.FirstMove;
+        if (detail is not null && !ReplayDetails.TryParse(detail, out queryDetail))
+        {
+            return ApiProblems.Validation("detail", "must be 'first-move' or 'full'");
+        }
+
+        long limit = limits.Value.MaxReplayBodyBytes;
+        if (request.ContentLength > limit)
+        {
+            return ApiProblems.PayloadTooLarge(limit);
+        }
+
+        var (model, problem) = await ModelLookup.FindAsync(id, catalog);
+        if (problem is not null)
+        {
+            return problem;
+        }
+
+        // Replay streams, so the server-wide body limit is lifted here and ours is counted as bytes arrive.
+        if (context.Features.Get<IHttpMaxRequestBodySizeFeature>() is { IsReadOnly: false } size)
+        {
+            size.MaxRequestBodySize = limit;
+        }
+
+        log.Set("ModelId", id);
+        log.Set("ReplayFormat", format);
+        var body = new LengthLimitedStream(request.Body, limit);
+        int maxRow = limits.Value.MaxReplayRowBytes;
+        int maxDepth = limits.Value.MaxJsonDepth;
+        var response = context.Response;
+        ReplaySummary summary;
+        switch (format)
+        {
+            case "csv":
+            {
+                var (source, errors) = await CsvSource.OpenAsync(body, model!, maxRow, cancellationToken);
+                if (source is null)
+                {
+                    return ApiProblems.Validation(errors, "The CSV header does not match the model; no row was processed.");
+                }
+
+                await using (source)
+                {
+                    response.ContentType = CsvContentType + "; charset=utf-8";
+                    await using var sink = new CsvSink(response.Body, source.Layout);
+                    summary = await runner.RunAsync(source, sink, model!, format, cancellationToken);
+                }
+
+                break;
+            }
+
+            case "ndjson":
+            {
+                var reader = PipeReader.Create(body);
+                response.ContentType = NdjsonContentType;
+                var source = new NdjsonSource(reader, maxRow, maxDepth);
+                summary = await runner.RunAsync(source, new NdjsonSink(response.BodyWriter, queryDetail), model!, format, cancellationToken);
+                await reader.CompleteAsync();
+                break;
+            }
+
+            default:
+            {
+                var reader = PipeReader.Create(body);
+                var source = new JsonRequestsSource(reader, maxRow, maxDepth);
+                var error = await source.PrepareAsync(cancellationToken);
+                if (error is not null)
+                {
+                    await reader.CompleteAsync();
+                    return error.Reason.StartsWith("is not valid JSON", StringComparison.Ordinal)
+                        ? ApiProblems.MalformedJson(new JsonErrorDescription(error, null, null))
+                        : ApiProblems.Validation([error], "The replay body is not { \"detail\"?, \"requests\": [ … ] }; no row was processed.");
+                }
+
+                var chosen = source.Detail is not null && ReplayDetails.TryParse(source.Detail, out var fromBody) ? fromBody : queryDetail;
+
+                response.ContentType = JsonContentType + "; charset=utf-8";
+                var sink = new JsonResultsSink(response.BodyWriter, id, () => chosen, () => source.Warnings);
+                summary = await runner.RunAsync(source, sink, model!, format, cancellationToken);
+                await reader.CompleteAsync();
+                break;
+            }
+        }
+
+        log.Set("ReplayRows", summary.Rows);
+        log.Set("ReplayFailedRows", summary.FailedRows);
+        return TypedResults.Empty;
+    }
+
+    private static string? FormatOf(string? contentType)
+    {
+        if (contentType is null)
+        {
+            return null;
+        }
+
+        var media = contentType.Split(';', 2)[0].Trim();
+        return media.ToLowerInvariant() switch
+        {
+            JsonContentType => "json",
+            NdjsonContentType or "application/ndjson" or "application/jsonl" => "ndjson",
+            CsvContentType => "csv",
+            _ => null,
+        };
+    }
+}

@@ -1,0 +1,75 @@
+using Lookahead.Api.Charts;
+using Lookahead.Api.Http;
+using Lookahead.Api.Models;
+using Lookahead.Core.Planning;
+using Lookahead.Core.Validation;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace Lookahead.Api.Simulation;
+
+/// <summary>Closed-loop simulation: what the controller would do over time, optionally against a different true plant.</summary>
+public static class SimulationApi
+{
+    public static IServiceCollection AddSimulation(this IServiceCollection services) => services.AddJsonContext(SimulationJsonContext.Default);
+
+    public static RouteGroupBuilder MapSimulationApi(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);
+
+        group.MapPost("/{id}/simulate", SimulateAsync)
+            .WithName("SimulateModel")
+            .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
+            .Accepts<SimulationRequestDto>("application/json")
+            .WithMetadata(new SvgAlternativeMetadata())
+            .ProducesBodyProblemsForModel();
+
+        return group;
+    }
+
+    public static async Task<Results<Ok<SimulationResponse>, ContentHttpResult, ProblemHttpResult>> SimulateAsync(
+        string id, [AsParameters] SimulationServices services, string? format = null)
+    {
+        if (!ResponseFormats.TryParse(format, out var responseFormat, out var formatProblem))
+        {
+            return formatProblem!;
+        }
+
+        var (model, problem) = await ModelLookup.FindAsync(id, services.Catalog);
+        if (problem is not null)
+        {
+            return problem;
+        }
+
+        var body = await services.Reader.ReadJsonAsync<SimulationRequestDto>(services.Request, services.CancellationToken);
+        if (body.Problem is not null)
+        {
+            return body.Problem;
+        }
+
+        services.Log.Set("ModelId", id);
+        var errors = new List<ValidationError>();
+        var simulation = SimulationMapping.ToCore(body.Value!, model!, errors);
+        if (errors.Count > 0)
+        {
+            return ApiProblems.Validation(errors);
+        }
+
+        SimulationResult result;
+        try
+        {
+            result = await Task.Run(() => ClosedLoopSimulator.Simulate(model!, simulation), services.CancellationToken);
+        }
+        catch (ModelValidationException ex)
+        {
+            return ApiProblems.Validation(ex.Errors);
+        }
+
+        if (responseFormat == ResponseFormat.Svg)
+        {
+            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References);
+            return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
+        }
+
+        return TypedResults.Ok(SimulationMapping.ToResponse(id, model!, result));
+    }
+}

@@ -1,0 +1,44 @@
+namespace Lookahead.Core.Planning;
+
+/// <summary>
+/// What a plan, a simulation or a compiled model reports beyond a clean optimum. The core gives the code and its
+/// numbers (<see cref="Warning"/>); the shell writes the sentence, so wording can change without touching numerics.
+/// </summary>
+public enum WarningCode
+{
+    /// <summary>No equilibrium holds the setpoint; the plan steers to the least-squares steady state. Amount: worst |C x_s − r|.</summary>
+    SetpointUnreachable,
+
+    /// <summary>The setpoint cannot be held inside the input limits; the target is the closest limited steady state. Amount: worst |C x_s − r|.</summary>
+    SetpointOutsideInputLimits,
+
+    /// <summary>The first move of one input cannot reach its window within its rate limit, so that one rate limit was relaxed. Input: its index.</summary>
+    FirstMoveRateRelaxed,
+
+    /// <summary>The solver stopped at its iteration cap; inputs were projected onto their limits. Count: the cap.</summary>
+    IterationLimit,
+
+    /// <summary>The hard limits contradict each other. Limit, Step and Index: the row that blocked.</summary>
+    LimitsContradict,
+
+    /// <summary>A soft output limit is exceeded because the hard limits leave no plan that meets it. Output, Step, Amount: the worst excess.</summary>
+    SoftOutputLimitExceeded,
+
+    /// <summary>Some steps of a closed-loop run were not a clean optimum. Count: how many.</summary>
+    StepsNotOptimal,
+
+    /// <summary>The receding-horizon closed loop is unstable. Amount: ρ(A − BK).</summary>
+    ClosedLoopUnstable,
+
+    /// <summary>A mode with |λ| ≥ 1 cannot be moved by any input. Eigenvalue: that mode.</summary>
+    NotStabilisable,
+
+    /// <summary>Some modes cannot be moved, all of them stable. Count: the controllability rank.</summary>
+    NotControllable,
+
+    /// <summary>A mode with |λ| ≥ 1 is not seen by the output weight. Eigenvalue: that mode.</summary>
+    ModeUnseenByCost,
+
+    /// <summary>The condensed Hessian is ill-conditioned. Amount: its condition number.</summary>
+    HessianIllConditioned,
+}
