@@ -5,19 +5,28 @@ namespace Lookahead.Api.Storage;
 
 /// <summary>
 /// The shared store for several service instances. Documents are kept as bytea, not jsonb, because jsonb
-/// reorders keys and the stored bytes must be exactly the canonical form the id hashes.
+/// reorders keys and the stored bytes must be exactly the canonical form the id hashes. Its tables come from
+/// <see cref="PostgresMigrations"/>, brought up to date when the store is first used.
 /// </summary>
 public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
 {
     private readonly NpgsqlDataSource dataSource;
     private readonly string schema;
+    private readonly MigrationSequence migrations;
     private readonly SemaphoreSlim initialisation = new(1, 1);
     private volatile bool initialised;
 
     public PostgresModelStore(string connectionString, string schema)
+        : this(connectionString, schema, PostgresMigrations.Sequence)
+    {
+    }
+
+    /// <summary>A store that brings its schema to the last version of <paramref name="migrations"/> when first used.</summary>
+    internal PostgresModelStore(string connectionString, string schema, MigrationSequence migrations)
     {
         dataSource = NpgsqlDataSource.Create(connectionString);
         this.schema = schema;
+        this.migrations = migrations;
     }
 
     private string Models => $"\"{schema}\".models";
@@ -264,49 +273,7 @@ public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
                 return;
             }
 
-            await using var connection = await dataSource.OpenConnectionAsync(cancellationToken);
-            await using var transaction = await connection.BeginTransactionAsync(cancellationToken);
-
-            // Several instances may start together; the advisory lock keeps their DDL from racing.
-            await using (var lockSchema = new NpgsqlCommand("SELECT pg_advisory_xact_lock(hashtext($1))", connection, transaction))
-            {
-                lockSchema.Parameters.Add(new NpgsqlParameter { Value = schema + "/schema" });
-                await lockSchema.ExecuteNonQueryAsync(cancellationToken);
-            }
-
-            await using (var ddl = new NpgsqlCommand(
-                $"""
-                CREATE SCHEMA IF NOT EXISTS "{schema}";
-                CREATE TABLE IF NOT EXISTS {Models} (
-                    seq bigserial NOT NULL,
-                    id text PRIMARY KEY,
-                    name text,
-                    document bytea NOT NULL,
-                    states integer NOT NULL,
-                    inputs integer NOT NULL,
-                    outputs integer NOT NULL,
-                    horizon integer NOT NULL,
-                    registered_at bigint NOT NULL);
-                CREATE UNIQUE INDEX IF NOT EXISTS models_seq ON {Models} (seq);
-                CREATE TABLE IF NOT EXISTS {Aliases} (
-                    name text PRIMARY KEY,
-                    model_id text NOT NULL REFERENCES {Models} (id),
-                    updated_at bigint NOT NULL);
-                CREATE INDEX IF NOT EXISTS aliases_model ON {Aliases} (model_id);
-                CREATE TABLE IF NOT EXISTS {History} (
-                    seq bigserial PRIMARY KEY,
-                    name text NOT NULL,
-                    model_id text NOT NULL,
-                    set_at bigint NOT NULL);
-                CREATE INDEX IF NOT EXISTS alias_history_name ON {History} (name, seq);
-                """,
-                connection,
-                transaction))
-            {
-                await ddl.ExecuteNonQueryAsync(cancellationToken);
-            }
-
-            await transaction.CommitAsync(cancellationToken);
+            await PostgresSchemaMigrator.MigrateAsync(dataSource, schema, migrations, $"The PostgreSQL store schema \"{schema}\"", cancellationToken);
             initialised = true;
         }
         finally

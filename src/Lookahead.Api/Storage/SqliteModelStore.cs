@@ -4,40 +4,25 @@ namespace Lookahead.Api.Storage;
 
 /// <summary>
 /// The default store: one SQLite file in WAL mode with synchronous=FULL, so a commit is on disk before the
-/// caller hears about it (a registration survives SIGKILL and power loss alike).
+/// caller hears about it (a registration survives SIGKILL and power loss alike). Its tables come from
+/// <see cref="SqliteMigrations"/>, brought up to date when the store is first used.
 /// </summary>
 public sealed class SqliteModelStore : IModelStore, IDisposable
 {
-    private const string Schema = """
-        CREATE TABLE IF NOT EXISTS models (
-            seq INTEGER PRIMARY KEY AUTOINCREMENT,
-            id TEXT NOT NULL UNIQUE,
-            name TEXT,
-            document BLOB NOT NULL,
-            states INTEGER NOT NULL,
-            inputs INTEGER NOT NULL,
-            outputs INTEGER NOT NULL,
-            horizon INTEGER NOT NULL,
-            registered_at INTEGER NOT NULL);
-        CREATE TABLE IF NOT EXISTS aliases (
-            name TEXT PRIMARY KEY,
-            model_id TEXT NOT NULL REFERENCES models(id),
-            updated_at INTEGER NOT NULL);
-        CREATE INDEX IF NOT EXISTS aliases_model ON aliases(model_id);
-        CREATE TABLE IF NOT EXISTS alias_history (
-            seq INTEGER PRIMARY KEY AUTOINCREMENT,
-            name TEXT NOT NULL,
-            model_id TEXT NOT NULL,
-            set_at INTEGER NOT NULL);
-        CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history(name, seq);
-        """;
-
     private readonly string connectionString;
+    private readonly MigrationSequence migrations;
     private readonly SemaphoreSlim initialisation = new(1, 1);
     private volatile bool initialised;
 
     public SqliteModelStore(string path)
+        : this(path, SqliteMigrations.Sequence)
     {
+    }
+
+    /// <summary>A store that brings its file to the last version of <paramref name="migrations"/> when first used.</summary>
+    internal SqliteModelStore(string path, MigrationSequence migrations)
+    {
+        this.migrations = migrations;
         FilePath = Path.GetFullPath(path);
         connectionString = new SqliteConnectionStringBuilder
         {
@@ -280,9 +265,15 @@ public sealed class SqliteModelStore : IModelStore, IDisposable
 
             await using var connection = new SqliteConnection(connectionString);
             await connection.OpenAsync(cancellationToken);
-            await using var command = connection.CreateCommand();
-            command.CommandText = "PRAGMA journal_mode = WAL; PRAGMA synchronous = FULL;" + Schema;
-            await command.ExecuteNonQueryAsync(cancellationToken);
+
+            // The journal mode cannot change inside a transaction, so it is set before the migrations run.
+            await using (var command = connection.CreateCommand())
+            {
+                command.CommandText = "PRAGMA busy_timeout = 10000; PRAGMA journal_mode = WAL; PRAGMA synchronous = FULL;";
+                await command.ExecuteNonQueryAsync(cancellationToken);
+            }
+
+            await SqliteSchemaMigrator.MigrateAsync(connection, migrations, $"The SQLite store {FilePath}", cancellationToken);
             initialised = true;
         }
         finally

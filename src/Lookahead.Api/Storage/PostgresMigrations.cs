@@ -1,0 +1,38 @@
+namespace Lookahead.Api.Storage;
+
+/// <summary>
+/// Every schema change of the PostgreSQL store, oldest first. A change is one new entry at the end with the next
+/// version; released entries never change. The statements run with search_path set to the store's schema, so
+/// names are unqualified and the same text serves every configured schema.
+/// </summary>
+internal static class PostgresMigrations
+{
+    public static MigrationSequence Sequence { get; } = new([
+        // IF NOT EXISTS throughout: running version 1 is also how a schema made before versions were recorded is
+        // adopted (and completed, should it hold only some of these tables).
+        new(1, "models, aliases and alias history", """
+            CREATE TABLE IF NOT EXISTS models (
+                seq bigserial NOT NULL,
+                id text PRIMARY KEY,
+                name text,
+                document bytea NOT NULL,
+                states integer NOT NULL,
+                inputs integer NOT NULL,
+                outputs integer NOT NULL,
+                horizon integer NOT NULL,
+                registered_at bigint NOT NULL);
+            CREATE UNIQUE INDEX IF NOT EXISTS models_seq ON models (seq);
+            CREATE TABLE IF NOT EXISTS aliases (
+                name text PRIMARY KEY,
+                model_id text NOT NULL REFERENCES models (id),
+                updated_at bigint NOT NULL);
+            CREATE INDEX IF NOT EXISTS aliases_model ON aliases (model_id);
+            CREATE TABLE IF NOT EXISTS alias_history (
+                seq bigserial PRIMARY KEY,
+                name text NOT NULL,
+                model_id text NOT NULL,
+                set_at bigint NOT NULL);
+            CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history (name, seq);
+            """),
+    ]);
+}

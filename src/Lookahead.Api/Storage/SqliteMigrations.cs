@@ -1,0 +1,36 @@
+namespace Lookahead.Api.Storage;
+
+/// <summary>
+/// Every schema change of the SQLite store, oldest first. A change is one new entry at the end with the next
+/// version; released entries never change.
+/// </summary>
+internal static class SqliteMigrations
+{
+    public static MigrationSequence Sequence { get; } = new([
+        // IF NOT EXISTS throughout: running version 1 is also how a database made before versions were recorded is
+        // adopted (and completed, should it hold only some of these tables).
+        new(1, "models, aliases and alias history", """
+            CREATE TABLE IF NOT EXISTS models (
+                seq INTEGER PRIMARY KEY AUTOINCREMENT,
+                id TEXT NOT NULL UNIQUE,
+                name TEXT,
+                document BLOB NOT NULL,
+                states INTEGER NOT NULL,
+                inputs INTEGER NOT NULL,
+                outputs INTEGER NOT NULL,
+                horizon INTEGER NOT NULL,
+                registered_at INTEGER NOT NULL);
+            CREATE TABLE IF NOT EXISTS aliases (
+                name TEXT PRIMARY KEY,
+                model_id TEXT NOT NULL REFERENCES models(id),
+                updated_at INTEGER NOT NULL);
+            CREATE INDEX IF NOT EXISTS aliases_model ON aliases(model_id);
+            CREATE TABLE IF NOT EXISTS alias_history (
+                seq INTEGER PRIMARY KEY AUTOINCREMENT,
+                name TEXT NOT NULL,
+                model_id TEXT NOT NULL,
+                set_at INTEGER NOT NULL);
+            CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history(name, seq);
+            """),
+    ]);
+}
