@@ -1,4 +1,6 @@
 using System.Net;
+using System.Net.Http.Headers;
+using System.Text;
 using System.Text.Json.Nodes;
 using Lookahead.Api.Tests.Support;
 using Xunit;
@@ -184,10 +186,28 @@ public class ModelRegistrationTests
     public async Task A_body_over_the_limit_is_refused_with_413_before_it_is_parsed()
     {
         await using var factory = new LookaheadFactory(new Dictionary<string, string?> { ["Limits:MaxBodyBytes"] = "4096" });
-        var model = TestModels.Node(TestModels.DoubleIntegrator);
-        model["name"] = new string('x', 8000);
+        var client = factory.CreateClient();
 
-        await (await factory.CreateClient().PostJsonAsync("/v1/models", model)).ReadProblemAsync(HttpStatusCode.RequestEntityTooLarge);
+        // Not JSON at all: had the body been parsed, the answer would be 400 (malformed JSON), not 413.
+        byte[] notJson = Encoding.UTF8.GetBytes("{" + new string('x', 8000));
+        var withLength = new ByteArrayContent(notJson);
+        withLength.Headers.ContentType = new MediaTypeHeaderValue("application/json");
+        var chunked = new StreamContent(new UnknownLengthStream(notJson));
+        chunked.Headers.ContentType = new MediaTypeHeaderValue("application/json");
+
+        await (await client.PostAsync("/v1/models", withLength)).ReadProblemAsync(HttpStatusCode.RequestEntityTooLarge);
+        await (await client.PostAsync("/v1/models", chunked)).ReadProblemAsync(HttpStatusCode.RequestEntityTooLarge);
+
+        // The same text under the limit is parsed, and refused as malformed.
+        var small = new ByteArrayContent(notJson.AsSpan(0, 100).ToArray());
+        small.Headers.ContentType = new MediaTypeHeaderValue("application/json");
+        await (await client.PostAsync("/v1/models", small)).ReadProblemAsync(HttpStatusCode.BadRequest);
+    }
+
+    /// <summary>A body whose length is not known up front, so it is sent chunked and counted as it arrives.</summary>
+    private sealed class UnknownLengthStream(byte[] data) : MemoryStream(data)
+    {
+        public override bool CanSeek => false;
     }
 
     [Fact]
