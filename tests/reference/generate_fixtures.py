@@ -31,6 +31,19 @@ dare.json
     solution exists (checked here with the Hautus test); no "p" is given.
     Note: for the unobservable unit-circle mode case SciPy does return a
     matrix, but it is not stabilising - a correct implementation must refuse.
+    "published" holds SciPy's own discrete-time Riccati test cases, read (not
+    copied) from scipy/linalg/tests/test_solvers.py as shipped by Debian's
+    python3-scipy (function test_solve_discrete_are: its "cases" list, mostly
+    the darex examples of Benner, Laub & Mehrmann 1995, and its "min_decimal"
+    residual tolerances).  The file is parsed with the ast module; the case
+    expressions are evaluated with numpy only.  For every case SciPy's test
+    expects to pass, p comes from solve_discrete_are and is checked here
+    against SciPy's own residual tolerance, symmetry and spectral radius.
+    Cases SciPy marks as known failures keep their data and tolerance but get
+    no p.  Complex cases and cases with a singular r (outside the solver's
+    r > 0 domain, though a stabilising solution exists) are listed under
+    "omitted" with the reason.  None of the included cases lacks a
+    stabilising solution (Hautus test), so none is added to "refused".
 
 unconstrained_plans.json
     Finite-horizon plans without limits.  For horizon N, output y_k = C x_k:
@@ -77,9 +90,11 @@ benchmark_models.json (in tests/reference/)
     plan (inputs, cost) computed as above.
 """
 
+import ast
 import json
 import os
 import platform
+import re
 import sys
 
 import numpy as np
@@ -397,10 +412,127 @@ def gen_dare():
            np.diag([0.0, 1.0]), [[1.0]],
            "eigenvalue 1 is not seen by q (unobservable mode on the unit circle): "
            "the minimal-cost solution leaves it at 1, no stabilising solution exists")
+    published = gen_published_dare()
     write_json(os.path.join(FIXTURES, "dare.json"), {
         "source": "scipy.linalg.solve_discrete_are, " + VERSIONS,
-        "cases": cases, "refused": refused})
-    return [c["name"] for c in cases], [c["name"] for c in refused]
+        "cases": cases, "refused": refused, "published": published})
+    return ([c["name"] for c in cases], [c["name"] for c in refused],
+            [c["name"] for c in published["cases"]])
+
+
+SCIPY_SOLVER_TESTS = os.path.join(os.path.dirname(scipy.__file__), "linalg", "tests",
+                                  "test_solvers.py")
+SCIPY_DARE_TEST = "test_solve_discrete_are"
+
+
+def scipy_dare_test_cases():
+    """The (a, b, q, r, knownfailure) cases, min_decimal tolerances, comment
+    labels and skip marks of SciPy's test_solve_discrete_are, read from the
+    installed test file: the list literals are found with the ast module and
+    evaluated with numpy as their only name."""
+    with open(SCIPY_SOLVER_TESTS, encoding="utf-8") as fh:
+        text = fh.read()
+    tree = ast.parse(text)
+    test = next(node for node in tree.body
+                if isinstance(node, ast.FunctionDef) and node.name == SCIPY_DARE_TEST)
+    values = {}
+    for statement in test.body:
+        if isinstance(statement, ast.Assign):
+            for target in statement.targets:
+                if isinstance(target, ast.Name):
+                    values[target.id] = statement.value
+
+    def evaluate(node):
+        return eval(compile(ast.Expression(node), SCIPY_SOLVER_TESTS, "eval"),
+                    {"__builtins__": {}, "np": np})
+
+    raw_cases = evaluate(values["cases"])
+    min_decimal = evaluate(values["min_decimal"])
+    assert len(raw_cases) == len(min_decimal), (len(raw_cases), len(min_decimal))
+    # Each case is introduced by a comment "# TEST CASE k : label".
+    block = text.splitlines()[values["cases"].lineno - 1:values["cases"].end_lineno]
+    labels = {}
+    for line in block:
+        found = re.match(r"\s*#\s*TEST CASE (\d+)\s*:\s*(.*?)\s*$", line)
+        if found:
+            labels[int(found.group(1))] = found.group(2)
+    assert sorted(labels) == list(range(len(raw_cases))), sorted(labels)
+    skipped = any("skip" in ast.unparse(d) for d in test.decorator_list)
+    return raw_cases, min_decimal, labels, skipped
+
+
+def scipy_residual(a, b, q, r, x):
+    """The residual SciPy's test computes: a'xa - x + q - a'xb (r + b'xb)^{-1} b'xa."""
+    res = a.T @ x @ a - x + q
+    return res - a.T @ x @ b @ sla.solve(r + b.T @ x @ b, b.T) @ x @ a
+
+
+def gen_published_dare():
+    raw_cases, min_decimal, labels, skipped = scipy_dare_test_cases()
+    cases = []
+    omitted = []
+    for index, (a, b, q, r, knownfailure) in enumerate(raw_cases):
+        darex = re.match(r"darex #(\d+)", labels[index])
+        name = "scipy-darex-%s" % darex.group(1) if darex else "scipy-case-%d" % index
+        if any(np.iscomplexobj(np.asarray(v)) for v in (a, b, q, r)):
+            omitted.append({"name": name, "scipyCase": index,
+                            "reason": "complex data; plants and weights are real"})
+            continue
+        a, b, q, r = (np.atleast_2d(np.asarray(v, dtype=float)) for v in (a, b, q, r))
+        rank = np.linalg.matrix_rank(r)
+        if rank < r.shape[0]:
+            # Not a refusal: SciPy's stabilising answer is checked here, so a solution exists.
+            p = sla.solve_discrete_are(a, b, q, r)
+            decimal = int(min_decimal[index])
+            assert abs(scipy_residual(a, b, q, r, p)).max() < 1.5 * 10.0 ** (-decimal), name
+            assert spectral_radius(a - b @ lqr_gain(a, b, r, p)) < 1.0, name
+            q_note = ("" if np.linalg.eigvalsh(q).min() >= 0
+                      else "; q is indefinite as well")
+            omitted.append({"name": name, "scipyCase": index,
+                            "reason": "r is singular (rank %d of %d): outside the solver's "
+                            "domain r > 0, although a stabilising solution exists (SciPy's "
+                            "meets its residual tolerance and stabilises)%s"
+                            % (rank, r.shape[0], q_note)})
+            continue
+        # Every included case has a stabilising solution, so none belongs in "refused".
+        assert np.linalg.eigvalsh(q).min() >= -1e-12 * max(1.0, abs(q).max()), name
+        assert not hautus_fails(a, b, q), name
+        decimal = int(min_decimal[index])
+        case = {"name": name, "scipyCase": index, "a": to_list(a), "b": to_list(b),
+                "q": to_list(q), "r": to_list(r), "residualDecimal": decimal,
+                "scipyExpectsFailure": knownfailure is not None}
+        if knownfailure is None:
+            p = sla.solve_discrete_are(a, b, q, r)
+            worst = abs(scipy_residual(a, b, q, r, p)).max()
+            assert worst < 1.5 * 10.0 ** (-decimal), (name, worst, decimal)
+            record("dare published: SciPy residual / its own tolerance",
+                   worst / (1.5 * 10.0 ** (-decimal)))
+            assert abs(p - p.T).max() <= 1e-14 * max(1.0, abs(p).max()), name
+            rho = spectral_radius(a - b @ lqr_gain(a, b, r, p))
+            assert rho < 1.0, (name, rho)
+            case["p"] = to_list(p)
+        cases.append(case)
+    notes = [
+        "Read from scipy/linalg/tests/test_solvers.py (SciPy %s, Debian python3-scipy), "
+        "function %s: its cases list and its min_decimal tolerances."
+        % (scipy.__version__, SCIPY_DARE_TEST),
+        "scipyCase is the case's index in that list; darex #k names example k of the "
+        "discrete-time collection of Benner, Laub & Mehrmann (1995) as the file labels it.",
+        "residualDecimal is SciPy's min_decimal: its test requires every entry of "
+        "a'xa - x + q - a'xb (r + b'xb)^{-1} b'xa to be below 1.5 * 10^-residualDecimal "
+        "in absolute value (numpy.testing.assert_array_almost_equal).",
+        "scipyExpectsFailure: SciPy's test marks the case as a known failure (xfail); such "
+        "cases carry no p.  p, where given, is scipy.linalg.solve_discrete_are's answer, "
+        "checked here against the residual tolerance, symmetry and closed-loop "
+        "spectral radius < 1.",
+    ]
+    if skipped:
+        notes.append("SciPy %s marks the whole test as skipped; this script runs SciPy's "
+                     "checks itself on every case it solves." % scipy.__version__)
+    return {"source": "scipy/linalg/tests/test_solvers.py, SciPy %s (%s); p from "
+                      "scipy.linalg.solve_discrete_are, %s"
+                      % (scipy.__version__, SCIPY_DARE_TEST, VERSIONS),
+            "notes": notes, "cases": cases, "omitted": omitted}
 
 
 # ----------------------------------------------------------------- targets
@@ -1127,9 +1259,10 @@ def main():
     names = {}
     names["expm.json"] = gen_expm()
     names["zoh.json"] = gen_zoh()
-    d, refused = gen_dare()
+    d, refused, published = gen_dare()
     names["dare.json"] = d
     names["dare.json refused"] = refused
+    names["dare.json published"] = published
     names["unconstrained_plans.json"] = gen_unconstrained()
     names["constrained_plans.json"] = gen_constrained()
     names["benchmark_models.json"], fraction = gen_benchmarks()

@@ -2,6 +2,7 @@ using FsCheck.Xunit;
 using Lookahead.Core.Models;
 using Lookahead.Core.Planning;
 using Lookahead.Core.Tests.Support;
+using Xunit;
 
 namespace Lookahead.Core.Tests.Planning;
 
@@ -49,19 +50,23 @@ public class ConstrainedPropertyTests
     }
 
     [Property(MaxTest = 80)]
-    public bool SoftLimitsNeverMakeAPlanInfeasible(int seed)
+    public void SoftLimitsNeverMakeAPlanInfeasible(int seed)
     {
         var scenario = Random(seed);
         var model = ModelCompiler.Compile(scenario.Document);
         var plan = model.Plan(scenario.Request);
 
         // Rate limits validated to contain 0 and a previous input inside the window always leave a feasible plan.
-        bool previousInsideWindow = scenario.Request.PreviousInput is null || !model.ConstrainedWithPrevious!.UnreachableFirstMoves(scenario.Request.PreviousInput).Any();
-        return !previousInsideWindow || plan.Status == PlanStatus.Optimal;
+        var previous = scenario.Request.PreviousInput;
+        bool previousInsideWindow = previous is null || !model.ConstrainedWithPrevious!.UnreachableFirstMoves(previous).Any();
+        Assert.True(
+            !previousInsideWindow || plan.Status == PlanStatus.Optimal,
+            $"{Describe(model, scenario)}: status {plan.Status} after {plan.Iterations} iterations, " +
+            $"largest soft-limit violation {plan.MaxOutputViolation:g3}; warnings: {string.Join(" | ", plan.Warnings)}");
     }
 
     [Property(MaxTest = 60)]
-    public bool TighteningALimitNeverLowersTheCost(int seed)
+    public void TighteningALimitNeverLowersTheCost(int seed)
     {
         var loose = Random(seed, tighten: 1.0);
         var tight = Random(seed, tighten: 0.6);
@@ -72,6 +77,24 @@ public class ConstrainedPropertyTests
         var request = loose.Request with { PreviousInput = null };
         var a = looseModel.Plan(request);
         var b = tightModel.Plan(request);
-        return a.Status != PlanStatus.Optimal || b.Status != PlanStatus.Optimal || b.Cost >= a.Cost - (1e-9 * Math.Max(1, a.Cost));
+        if (a.Status != PlanStatus.Optimal || b.Status != PlanStatus.Optimal)
+        {
+            return;  // an iteration-limit plan is clipped, not optimal: its cost says nothing about the limits
+        }
+
+        Assert.True(
+            b.Cost >= a.Cost - (1e-9 * Math.Max(1, a.Cost)),
+            $"{Describe(looseModel, loose with { Request = request })}: limits scaled by 0.6 gave cost {b.Cost:R}, below the looser limits' {a.Cost:R} " +
+            $"(input min: tight [{Numbers(tight.Document.Limits!.InputMin)}], loose [{Numbers(loose.Document.Limits!.InputMin)}]; " +
+            $"input max: tight [{Numbers(tight.Document.Limits.InputMax)}], loose [{Numbers(loose.Document.Limits.InputMax)}])");
     }
+
+    private static string Describe(CompiledModel model, Scenario scenario) =>
+        $"n = {model.StateCount}, m = {model.InputCount}, p = {model.OutputCount}, N = {model.Horizon}; " +
+        $"x0 = [{Numbers(scenario.Request.State)}], u₋₁ = {(scenario.Request.PreviousInput is { } u ? $"[{Numbers(u)}]" : "none")}";
+
+    private static string Numbers(IEnumerable<double?>? values) =>
+        values is null ? "" : string.Join(", ", values.Select(v => v?.ToString("R", System.Globalization.CultureInfo.InvariantCulture) ?? "none"));
+
+    private static string Numbers(IEnumerable<double> values) => Numbers(values.Select(v => (double?)v));
 }
