@@ -1,5 +1,4 @@
 using System.ComponentModel.DataAnnotations;
-using Lookahead.Api.Catalog;
 
 namespace Lookahead.Api.Hosting;
 
@@ -10,8 +9,8 @@ public sealed class DemoOptions
 
     public bool Enabled { get; set; } = true;
 
+    /// <summary>Checked against the alias naming rule where the options are registered.</summary>
     [Required]
-    [RegularExpression(AliasName.Pattern)]
     public string Alias { get; set; } = "cold-store-demo";
 
     /// <summary>Relative paths are taken from the application's folder.</summary>

@@ -45,7 +45,9 @@ public static class ServiceCollectionExtensions
             .ValidateOnStart();
         services.AddOptions<RequestLimitsOptions>().BindConfiguration(RequestLimitsOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddOptions<RateLimitingOptions>().BindConfiguration(RateLimitingOptions.Section).ValidateDataAnnotations().ValidateOnStart();
-        services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateDataAnnotations()
+            .Validate(o => AliasName.IsWellFormed(o.Alias), $"Demo:Alias must match {AliasName.Pattern}")
+            .ValidateOnStart();
 
         // Kestrel enforces the ordinary body limit itself; replay raises it per request.
         services.AddOptions<KestrelServerOptions>().Configure<IOptions<RequestLimitsOptions>>((kestrel, limits) =>

@@ -1,5 +1,6 @@
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
+using Lookahead.Api.Storage;
 using Lookahead.Core.Models;
 using Lookahead.Core.Planning;
 
@@ -24,7 +25,7 @@ public static class ModelResponses
         Rows.Finite(d.HessianCondition),
         Rows.Finite(d.ClosedLoopSpectralRadius));
 
-    public static bool IsContinuous(CompiledModel model) => model.Document.Plant.TimeDomain == TimeDomain.Continuous;
+    private static bool IsContinuous(CompiledModel model) => model.Document.Plant.TimeDomain == TimeDomain.Continuous;
 
     public static GainResponse Gain(string id, CompiledModel model) => new(
         id,
@@ -42,6 +43,20 @@ public static class ModelResponses
             Dimensions(model),
             model.SampleTime,
             ModelDocumentMapping.TimeDomainName(model.Document.Plant.TimeDomain),
+            continuous ? model.DiscreteA : null,
+            continuous ? model.DiscreteB : null,
+            Diagnostics(model.Diagnostics),
+            WarningText.ToDtos(model.Diagnostics.Warnings));
+    }
+
+    public static ModelDetailsResponse Details(string id, (StoredModel Stored, CanonicalModel Canonical) stored, CompiledModel model)
+    {
+        bool continuous = IsContinuous(model);
+        return new ModelDetailsResponse(
+            id,
+            stored.Stored.Summary.RegisteredAt,
+            stored.Canonical.Dto,
+            Dimensions(model),
             continuous ? model.DiscreteA : null,
             continuous ? model.DiscreteB : null,
             Diagnostics(model.Diagnostics),

@@ -114,16 +114,7 @@ public static class ModelsApi
             return ModelProblems.ModelNotFound(id);
         }
 
-        bool continuous = ModelResponses.IsContinuous(model);
-        return TypedResults.Ok(new ModelDetailsResponse(
-            id,
-            stored.Stored.Summary.RegisteredAt,
-            stored.Canonical.Dto,
-            ModelResponses.Dimensions(model),
-            continuous ? model.DiscreteA : null,
-            continuous ? model.DiscreteB : null,
-            ModelResponses.Diagnostics(model.Diagnostics),
-            WarningText.ToDtos(model.Diagnostics.Warnings)));
+        return TypedResults.Ok(ModelResponses.Details(id, stored, model));
     }
 
     public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string id, ModelCatalog catalog, CancellationToken cancellationToken)
