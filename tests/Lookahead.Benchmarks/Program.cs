@@ -6,6 +6,7 @@ public static class Program
 {
     /// <summary>
     /// <c>--flops</c> prints the floating-point operation counts of one unconstrained plan and exits;
+    /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
@@ -14,6 +15,12 @@ public static class Program
         {
             FlopCounter.Print(Console.Out);
             return 0;
+        }
+
+        int timeStates = Array.FindIndex(args, a => a.Equals("--time-states", StringComparison.OrdinalIgnoreCase));
+        if (timeStates >= 0 && timeStates + 1 < args.Length)
+        {
+            return StateTimer.Run(args[timeStates + 1], Console.Out);
         }
 
         var summaries = BenchmarkSwitcher.FromAssembly(typeof(Program).Assembly).Run(args, BenchmarkConfig.Create(args));
