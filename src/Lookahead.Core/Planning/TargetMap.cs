@@ -108,7 +108,8 @@ internal sealed class TargetMap
         return result;
     }
 
-    private static Matrix<double> SymmetricSquareRoot(Matrix<double> q)
+    /// <summary>Q^{1/2} of a symmetric positive semidefinite Q (eigenvalues below zero by rounding count as zero).</summary>
+    internal static Matrix<double> SymmetricSquareRoot(Matrix<double> q)
     {
         var evd = q.Evd(Symmetricity.Symmetric);
         var root = evd.EigenValues.Select(z => Math.Sqrt(Math.Max(z.Real, 0))).ToArray();
