@@ -3,8 +3,9 @@ using System.Buffers.Text;
 namespace Lookahead.Api.Http;
 
 /// <summary>
-/// Writes a double with 15 significant digits by integer arithmetic — several times faster than the runtime's
-/// shortest round-trip formatting, which dominated the cost of a plan response (hundreds of numbers each).
+/// Writes a double with 15 significant digits by integer arithmetic — about twice as fast as the runtime's shortest
+/// round-trip formatting and 1.1–2× as fast as its G15 (CompactNumberBenchmarks, docs/performance.md); formatting
+/// was the largest cost of a plan response (hundreds of numbers each).
 /// 15 digits is what a double holds reliably (relative error ≤ 1e-15), far finer than any actuator moves.
 /// Values in [1e-7, 1e15) are written in fixed notation, others down to 1e-290 and up to 1e290 as d.ddde±x;
 /// beyond that the runtime's round-trip format is used.

@@ -21,8 +21,8 @@ internal sealed class TrajectoryRowsConverter : JsonConverter<TrajectoryRows>
 
     public override void Write(Utf8JsonWriter writer, TrajectoryRows value, JsonSerializerOptions options)
     {
-        // The whole trajectory is formatted into one buffer and handed over as a single raw value: per-number
-        // writer calls cost more than the digits themselves.
+        // The whole trajectory is formatted into one buffer and handed over as a single raw value, so the numbers
+        // go through CompactNumber rather than the writer's own round-trip formatting.
         int rows = value.RowCount;
         int size = 2 + (rows * (3 + (value.Columns * (CompactNumber.MaxLength + 1))));
         byte[] buffer = System.Buffers.ArrayPool<byte>.Shared.Rent(size);
