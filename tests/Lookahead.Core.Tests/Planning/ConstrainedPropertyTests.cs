@@ -56,7 +56,7 @@ public class ConstrainedPropertyTests
         var plan = model.Plan(scenario.Request);
 
         // Rate limits validated to contain 0 and a previous input inside the window always leave a feasible plan.
-        bool previousInsideWindow = scenario.Request.PreviousInput is null || !model.ConstrainedWithPrevious!.UnreachableFirstMoves(scenario.Request.PreviousInput).Any();
+        bool previousInsideWindow = scenario.Request.PreviousInput is null || !model.ConstrainedWithPrevious!.Rows.UnreachableFirstMoves(scenario.Request.PreviousInput).Any();
         return !previousInsideWindow || plan.Status == PlanStatus.Optimal;
     }
 
