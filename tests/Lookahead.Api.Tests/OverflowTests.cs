@@ -9,7 +9,7 @@ public class OverflowTests
 {
     [Theory]
     [InlineData("/plan", """{"state":[1e308,1e308]}""", "state")]
-    [InlineData("/plan", """{"state":[1,2],"reference":[1e308,-1e308],"previousInput":[5,5]}""", "state")]
+    [InlineData("/plan", """{"state":[1,2],"reference":[1e308,-1e308],"previousInput":[5,5]}""", "reference")]
     [InlineData("/simulate", """{"initialState":[1,2],"steps":5,"truePlant":{"a":[[1e308,0],[0,1]],"b":[[1,0],[0,1]],"timeDomain":"continuous"}}""", "truePlant")]
     public async Task Huge_values_are_a_bad_request_naming_the_field(string route, string body, string path)
     {

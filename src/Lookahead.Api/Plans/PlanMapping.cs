@@ -18,6 +18,7 @@ public static class PlanMapping
         ToActiveLimits(plan.ActiveLimits),
         plan.Iterations,
         plan.MaxOutputViolation,
+        plan.SoftLimitPenalty,
         WarningText.ToDtos(plan.Warnings),
         solveMicroseconds);
 

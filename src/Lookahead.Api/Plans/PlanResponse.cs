@@ -2,7 +2,11 @@ using Lookahead.Api.Http;
 
 namespace Lookahead.Api.Plans;
 
-/// <summary>The optimal input sequence and its predicted trajectory. Anything but status "optimal" comes with a warning code.</summary>
+/// <summary>
+/// The optimal input sequence and its predicted trajectory. Anything but status "optimal" comes with a warning code.
+/// <see cref="Cost"/> is J as defined for the model; when a soft output limit cannot be met, the violation is in
+/// <see cref="MaxOutputViolation"/> and the internal penalty that traded it off in <see cref="SoftLimitPenalty"/>.
+/// </summary>
 public sealed record PlanResponse(
     string ModelId,
     string? Alias,
@@ -15,6 +19,7 @@ public sealed record PlanResponse(
     IReadOnlyList<ActiveLimitDto> ActiveLimits,
     int Iterations,
     double MaxOutputViolation,
+    double SoftLimitPenalty,
     IReadOnlyList<WarningDto> Warnings,
     double SolveMicroseconds);
 

@@ -27,5 +27,6 @@ public sealed record ReplayRowResult(
     IReadOnlyList<ActiveLimitDto>? ActiveLimits,
     int? Iterations,
     double? MaxOutputViolation,
+    double? SoftLimitPenalty,
     IReadOnlyList<string>? Warnings,
     IReadOnlyList<ProblemError>? Errors);

@@ -18,6 +18,7 @@ internal static class ResultJsonWriter
     private static readonly JsonEncodedText ActiveLimits = JsonEncodedText.Encode("activeLimits");
     private static readonly JsonEncodedText Iterations = JsonEncodedText.Encode("iterations");
     private static readonly JsonEncodedText MaxOutputViolation = JsonEncodedText.Encode("maxOutputViolation");
+    private static readonly JsonEncodedText SoftLimitPenalty = JsonEncodedText.Encode("softLimitPenalty");
     private static readonly JsonEncodedText Warnings = JsonEncodedText.Encode("warnings");
     private static readonly JsonEncodedText Errors = JsonEncodedText.Encode("errors");
     private static readonly JsonEncodedText Path = JsonEncodedText.Encode("path");
@@ -90,6 +91,7 @@ internal static class ResultJsonWriter
             writer.WriteEndArray();
             writer.WriteNumber(Iterations, plan.Iterations);
             writer.WriteNumber(MaxOutputViolation, plan.MaxOutputViolation);
+            writer.WriteNumber(SoftLimitPenalty, plan.SoftLimitPenalty);
         }
 
         var warnings = outcome.Warnings;

@@ -5,8 +5,10 @@ using System.Runtime.InteropServices;
 namespace Lookahead.Core.Numerics;
 
 /// <summary>
-/// Request-time kernels on row-major spans. They allocate nothing and check lengths up front.
-/// No destination may alias an input.
+/// Request-time kernels on spans. They allocate nothing, check lengths up front, and no destination may alias an
+/// input. Layout is part of each kernel's contract and named in its doc: the plain products read M row-major
+/// (row i at i·columns); the <c>…Columns</c> and <c>…Transposed…</c> kernels read M column-major (column j at
+/// j·rows), which is how the gain maps and the plant matrices are stored for the rollout.
 /// </summary>
 public static class DenseKernels
 {
@@ -51,7 +53,7 @@ public static class DenseKernels
         return sum;
     }
 
-    /// <summary>y += M x for row-major M (rows × x.Length).</summary>
+    /// <summary>y += M x for row-major M (y.Length × x.Length): y_i += Σ_j M[i·cols + j] x_j, one dot product per row.</summary>
     /// <exception cref="ArgumentException">Lengths do not match.</exception>
     public static void MultiplyAdd(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
     {
@@ -68,7 +70,7 @@ public static class DenseKernels
         }
     }
 
-    /// <summary>y = M x for row-major M (rows × x.Length).</summary>
+    /// <summary>y = M x for row-major M (y.Length × x.Length).</summary>
     public static void Multiply(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
     {
         y.Clear();
@@ -76,19 +78,27 @@ public static class DenseKernels
     }
 
     /// <summary>
-    /// y += M x for M stored column-major (x.Length columns of y.Length entries each). Each column is one
-    /// vectorised AXPY, so there are no horizontal sums: this is the fast form for the short, wide products
-    /// of a plan (12×12 in a few nanoseconds). Read the same array as row-major to multiply by Mᵀ with
-    /// <see cref="MultiplyAdd"/>.
+    /// y += M x for M stored column-major (x.Length columns of y.Length entries each, column j at j·y.Length).
+    /// Each column is one vectorised AXPY, so there are no horizontal sums: this is the fast form for the short,
+    /// wide products of a plan (12×12 in a few nanoseconds). For Mᵀx use <see cref="MultiplyTransposedAdd"/>.
     /// </summary>
     /// <exception cref="ArgumentException">Lengths do not match.</exception>
-    public static void MultiplyAddColumns(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    public static void MultiplyAddColumns(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y) =>
+        MultiplyAddColumns(m, y.Length, x, y);
+
+    /// <summary>
+    /// y += M[0..y.Length) x: the first y.Length rows of M times x, for M stored column-major with
+    /// <paramref name="rowCount"/> rows and x.Length columns (column j at j·rowCount). With y.Length = rowCount this is
+    /// the whole product; the first move of a plan takes only the first m rows of its N·m-row gain maps.
+    /// Columns whose x_j is zero are skipped.
+    /// </summary>
+    /// <exception cref="ArgumentException">Lengths do not match, or y is longer than a column.</exception>
+    public static void MultiplyAddColumns(ReadOnlySpan<double> m, int rowCount, ReadOnlySpan<double> x, Span<double> y)
     {
-        int rows = y.Length;
         int cols = x.Length;
-        if (m.Length != rows * cols)
+        if (m.Length != rowCount * cols || y.Length > rowCount)
         {
-            throw new ArgumentException($"matrix has {m.Length} entries; expected {rows}×{cols}");
+            throw new ArgumentException($"matrix has {m.Length} entries; expected {rowCount}×{cols} with at least {y.Length} rows");
         }
 
         for (int j = 0; j < cols; j++)
@@ -96,14 +106,36 @@ public static class DenseKernels
             double xj = x[j];
             if (xj != 0)
             {
-                Axpy(xj, m.Slice(j * rows, rows), y);
+                Axpy(xj, m.Slice(j * rowCount, y.Length), y);
             }
         }
     }
 
     /// <summary>
-    /// y = M x for column-major M, accumulating blocks of up to 16 rows in registers across all columns, so y is
-    /// written once instead of once per column. The rollout's x⁺ = A x + B u is two of these fused.
+    /// y += Mᵀ x for M stored column-major with x.Length rows and y.Length columns (column j at j·x.Length):
+    /// y_j += Σ_i M_ij x_i, one dot product with each contiguous column. This is how the adjoint recursion
+    /// applies Aᵀ, Bᵀ and Cᵀ to the same column-major arrays the rollout uses for A, B and C.
+    /// </summary>
+    /// <exception cref="ArgumentException">Lengths do not match.</exception>
+    public static void MultiplyTransposedAdd(ReadOnlySpan<double> m, ReadOnlySpan<double> x, Span<double> y)
+    {
+        int rows = x.Length;
+        int cols = y.Length;
+        if (m.Length != rows * cols)
+        {
+            throw new ArgumentException($"matrix has {m.Length} entries; expected {rows}×{cols}");
+        }
+
+        for (int j = 0; j < cols; j++)
+        {
+            y[j] += Dot(m.Slice(j * rows, rows), x);
+        }
+    }
+
+    /// <summary>
+    /// y = M x + M₂ x₂ for column-major M (y.Length × x.Length) and M₂ (y.Length × x₂.Length), accumulating
+    /// blocks of up to 16 rows in registers across all columns, so y is written once instead of once per column.
+    /// The rollout's x⁺ = A x + B u is exactly this.
     /// </summary>
     /// <exception cref="ArgumentException">Lengths do not match.</exception>
     public static void MultiplyColumns(ReadOnlySpan<double> m, ReadOnlySpan<double> x, ReadOnlySpan<double> m2, ReadOnlySpan<double> x2, Span<double> y)

@@ -9,13 +9,22 @@ namespace Lookahead.Core.Optimization;
 /// It starts from the unconstrained minimiser −G⁻¹a and adds violated constraints one at a time, keeping
 /// every iterate dual feasible, so a point that already satisfies every constraint costs nothing more.
 /// G, its factor and the constraint normals are fixed per instance; a and b change per solve.
-/// The active-set factorisation J₀ᵀN = Q[R; 0] with J₀ = L⁻ᵀ is updated by Givens rotations.
+/// The active set is kept as J = J₀Q and upper-triangular R with J₀ᵀN = Q[R; 0], J₀ = L⁻ᵀ (cached per instance).
+/// Adding a constraint applies one Householder reflection to J's trailing columns; dropping one restores R to
+/// triangular form by Givens rotations.
 /// Immutable: any number of threads may solve at once, each with its own <see cref="QpWorkspace"/>.
 /// </summary>
 public sealed class DualActiveSetSolver
 {
     /// <summary>Relative feasibility tolerance: n_jᵀx − b_j ≥ −tol·(1 + |b_j|) counts as satisfied.</summary>
     public const double FeasibilityTolerance = 1e-10;
+
+    /// <summary>
+    /// A normal whose part outside the active normals' span has ‖z‖² ≤ this × max(1, ‖d‖²) is treated as dependent on
+    /// them (no primal step). Squared norms, so a norm ratio of 1e-12: thousands of ulps, room for the rounding J's
+    /// updates leave, yet far below the part any genuinely new direction keeps.
+    /// </summary>
+    public const double DependentNormalTolerance = 1e-24;
 
     private readonly CholeskyFactor factor;
     private readonly double[] initialJ;
@@ -106,7 +115,7 @@ public sealed class DualActiveSetSolver
             double slack = Constraints.Dot(e, x) - rhs[e];
             Directions(e, q, j, r, d, z, step);
             double zz = Norm2Tail(d, q, n);
-            if (zz <= 1e-24 * Math.Max(1, Norm2Tail(d, 0, n)))
+            if (zz <= DependentNormalTolerance * Math.Max(1, Norm2Tail(d, 0, n)))
             {
                 // Dependent on earlier equalities: fine if consistent, infeasible otherwise.
                 if (Math.Abs(slack) > FeasibilityTolerance * (1 + Math.Abs(rhs[e])))
@@ -154,7 +163,7 @@ public sealed class DualActiveSetSolver
             // Step directions for the candidate: primal z in the null space of the active normals, dual r.
             Directions(candidate, q, j, r, d, z, step);
             double zz = Norm2Tail(d, q, n);
-            bool primalStep = zz > 1e-24 * Math.Max(1, Norm2Tail(d, 0, n));
+            bool primalStep = zz > DependentNormalTolerance * Math.Max(1, Norm2Tail(d, 0, n));
 
             // Partial step: the largest t that keeps every inequality multiplier nonnegative.
             double partial = double.PositiveInfinity;

@@ -10,6 +10,9 @@ public static class ClosedLoopSimulator
     /// <summary>Longest run accepted, so one request cannot hold a worker for long.</summary>
     public const int MaxSteps = 10_000;
 
+    /// <summary>Disturbance rows stop being checked once this many errors are listed: a long bad array has said enough by then.</summary>
+    private const int MaxListedErrors = 20;
+
     /// <exception cref="ModelValidationException">A field of the request is invalid.</exception>
     public static SimulationResult Simulate(CompiledModel model, SimulationRequest request)
     {
@@ -128,7 +131,7 @@ public static class ClosedLoopSimulator
                 errors.Add(new("disturbances", $"has {w.Length} rows; at most one per step ({request.Steps})"));
             }
 
-            for (int k = 0; k < w.Length && errors.Count < 20; k++)
+            for (int k = 0; k < w.Length && errors.Count < MaxListedErrors; k++)
             {
                 if (w[k] is null || w[k].Length != n)
                 {

@@ -7,7 +7,7 @@ public sealed record CompileOptions
 {
     public SizeLimits SizeLimits { get; init; } = SizeLimits.Default;
 
-    /// <summary>Active-set iteration cap per constrained plan; null means 3 × (number of inequality rows) + 10.</summary>
+    /// <summary>Active-set iteration cap per limited plan; null means max(50, 2 × limit rows) (see <see cref="CompiledModel.MaxSolverIterations"/>).</summary>
     public int? MaxSolverIterations { get; init; }
 
     /// <summary>
@@ -16,7 +16,7 @@ public sealed record CompileOptions
     /// </summary>
     public double? SoftLimitLinearWeight { get; init; }
 
-    /// <summary>Condition number above which the Hessian is reported as ill-conditioned.</summary>
+    /// <summary>Condition number above which the Hessian is reported as ill-conditioned: beyond 1e10 a plan keeps fewer than six of double's sixteen digits.</summary>
     public double IllConditionedThreshold { get; init; } = 1e10;
 
     public static CompileOptions Default { get; } = new();

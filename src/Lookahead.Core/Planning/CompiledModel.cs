@@ -11,6 +11,8 @@ namespace Lookahead.Core.Planning;
 /// J = Σ_{k=0}^{N−1} [ (y_k − r)ᵀQ(y_k − r) + (u_k − u_s)ᵀR(u_k − u_s) + Δu_kᵀSΔu_k ] + (x_N − x_s)ᵀP(x_N − x_s)
 /// </code>
 /// subject to x_{k+1} = A x_k + B u_k, with Δu_k = u_k − u_{k−1} (the Δu_0 term only when the previous input is given).
+/// Under soft output limits the solve adds a penalty for their violation; it is reported apart from J
+/// (<see cref="Planning.Plan.SoftLimitPenalty"/>), never inside it.
 /// Immutable and safe to share between threads: every plan works on its own result and stack space.
 /// </summary>
 public sealed class CompiledModel
@@ -25,8 +27,23 @@ public sealed class CompiledModel
     private readonly ConstrainedProblem? constrainedWithPrevious;
     private readonly TargetSolver? targetSolver;
 
-    /// <summary>Above this Hessian condition number every plan takes refinement steps.</summary>
+    /// <summary>Above this Hessian condition number every plan takes refinement steps: below it, cond·ε ≲ 1e-10 and the condensed solve alone is accurate.</summary>
     internal const double RefinementCondition = 1e6;
+
+    /// <summary>Refinement steps per plan: the first recovers most digits the condensed solve lost, the second the rest.</summary>
+    private const int RefinementSteps = 2;
+
+    /// <summary>Fewest active-set iterations a limited plan may take by default, so small problems are never starved.</summary>
+    internal const int MinSolverIterations = 50;
+
+    /// <summary>Default iterations per limit row: each row is added at most once on a typical path, dropped at most once.</summary>
+    internal const int SolverIterationsPerRow = 2;
+
+    /// <summary>Bytes counted for this object's own fields, the target maps and the trajectory's copies of A, B, C and the weights.</summary>
+    private const long FixedOverheadBytes = 4096;
+
+    /// <summary>C x_s within this of r (relative to max(1, ‖r‖∞)) counts as reaching the setpoint: the target maps' rounding, not a real miss.</summary>
+    private const double ReferenceReachedTolerance = 1e-9;
 
     internal CompiledModel(
         ValidatedModel model,
@@ -101,7 +118,7 @@ public sealed class CompiledModel
     public long EstimatedBytes =>
         withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes)
         + (constrainedWithoutPrevious?.Bytes ?? 0) + (ReferenceEquals(constrainedWithPrevious, constrainedWithoutPrevious) ? 0 : constrainedWithPrevious?.Bytes ?? 0)
-        + 4096;
+        + FixedOverheadBytes;
 
     /// <summary>True when the model carries any input, rate or output limit.</summary>
     public bool HasLimits => constrainedWithoutPrevious is not null;
@@ -109,8 +126,8 @@ public sealed class CompiledModel
     /// <summary>Inequality rows of the limited problem (0 without limits).</summary>
     public int LimitRowCount => constrainedWithoutPrevious?.RowCount ?? 0;
 
-    /// <summary>Iteration cap of the active-set solver per plan.</summary>
-    public int MaxSolverIterations => Options.MaxSolverIterations ?? Math.Max(50, 2 * LimitRowCount);
+    /// <summary>Iteration cap of the active-set solver per plan: the option, or max(50, 2 × limit rows).</summary>
+    public int MaxSolverIterations => Options.MaxSolverIterations ?? Math.Max(MinSolverIterations, SolverIterationsPerRow * LimitRowCount);
 
     /// <summary>Checks a request's vectors against this model; an empty list means it is acceptable.</summary>
     public IReadOnlyList<ValidationError> ValidateRequest(PlanRequest request)
@@ -142,22 +159,14 @@ public sealed class CompiledModel
         int p = OutputCount;
         var plan = new Plan(Horizon, n, m, p);
         var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
-        Span<double> u = plan.Inputs;
-
-        DenseKernels.MultiplyAddColumns(gains.Kx, request.State, u);
-        Span<double> targetState = n <= 256 ? stackalloc double[n] : new double[n];
-        Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
+        Span<double> targetState = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
+        Span<double> targetInput = StackScratch.Fits(m) ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
         List<Warning>? warnings = null;
         if (request.Reference is { } reference)
         {
-            DenseKernels.Multiply(targets.StateMap, reference, targetState);
-            DenseKernels.Multiply(targets.InputMap, reference, targetInput);
-            bool limited = targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
-            DenseKernels.MultiplyAddColumns(gains.Kr, reference, u);
-            DenseKernels.MultiplyAddColumns(gains.Kxs, targetState, u);
-            DenseKernels.MultiplyAddColumns(gains.Kus, targetInput, u);
+            bool limited = Targets(reference, targetState, targetInput);
             plan.Target = MakeTarget(reference, targetState, targetInput, limited);
             if (!plan.Target.ReferenceReached)
             {
@@ -165,20 +174,11 @@ public sealed class CompiledModel
             }
         }
 
-        if (request.PreviousInput is { } previous)
-        {
-            DenseKernels.MultiplyAddColumns(gains.Kup, previous, u);
-        }
-
-        for (int i = 0; i < u.Length; i++)
-        {
-            u[i] = -u[i];
-        }
-
+        gains.Apply(request.State, request.Reference, targetState, targetInput, request.PreviousInput, plan.Inputs);
         var constrained = request.PreviousInput is null ? constrainedWithoutPrevious : constrainedWithPrevious;
         if (constrained is not null)
         {
-            var outcome = constrained.Solve(u, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations);
+            var outcome = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations);
             plan.Status = outcome.Status;
             plan.Iterations = outcome.Iterations;
             plan.ActiveLimits = outcome.ActiveLimits;
@@ -186,12 +186,15 @@ public sealed class CompiledModel
             {
                 (warnings ??= []).AddRange(outcome.Warnings);
             }
-            plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput) + outcome.Penalty;
-            var violation = constrained.WorstViolation(plan.Outputs, p);
-            plan.MaxOutputViolation = violation.Amount;
-            if (violation.Amount > 1e-9)
+            plan.Cost = trajectory.Evaluate(plan, request.State, request.Reference, targetState, targetInput, request.PreviousInput);
+            var (violation, violationWarning) = constrained.SoftLimits.Violation(plan.Outputs, p);
+            plan.MaxOutputViolation = violation;
+            if (violationWarning is not null)
             {
-                (warnings ??= []).Add(new Warning(WarningCode.SoftOutputLimitExceeded) { Output = violation.Output, Step = violation.Step, Amount = violation.Amount });
+                // Only a reported violation carries a penalty: a limit met to rounding (slack 1e-20) leaves a
+                // penalty of rounding size, which is not a price anyone paid.
+                (warnings ??= []).Add(violationWarning);
+                plan.SoftLimitPenalty = outcome.Penalty;
             }
         }
         else
@@ -208,9 +211,9 @@ public sealed class CompiledModel
             plan.Warnings = warnings;
         }
 
-        if (!double.IsFinite(plan.Cost) || !DenseKernels.AllFinite(plan.Inputs) || !DenseKernels.AllFinite(plan.States) || !DenseKernels.AllFinite(plan.Outputs))
+        if (!double.IsFinite(plan.Cost) || !double.IsFinite(plan.SoftLimitPenalty) || !DenseKernels.AllFinite(plan.Inputs) || !DenseKernels.AllFinite(plan.States) || !DenseKernels.AllFinite(plan.Outputs))
         {
-            throw Overflow();
+            throw Overflow(request, gains);
         }
 
         return plan;
@@ -239,22 +242,15 @@ public sealed class CompiledModel
 
         int n = StateCount;
         int m = InputCount;
-        int rows = DecisionVariables;
         var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
-        firstMove.Clear();
-        AddFirstRows(gains.Kx, request.State, rows, firstMove);
-        Span<double> targetState = n <= 256 ? stackalloc double[n] : new double[n];
-        Span<double> targetInput = m <= 256 ? stackalloc double[m] : new double[m];
+        Span<double> targetState = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
+        Span<double> targetInput = StackScratch.Fits(m) ? stackalloc double[m] : new double[m];
         targetState.Clear();
         targetInput.Clear();
         IReadOnlyList<Warning> warnings = [];
         if (request.Reference is { } reference)
         {
-            DenseKernels.Multiply(targets.StateMap, reference, targetState);
-            DenseKernels.Multiply(targets.InputMap, reference, targetInput);
-            AddFirstRows(gains.Kr, reference, rows, firstMove);
-            AddFirstRows(gains.Kxs, targetState, rows, firstMove);
-            AddFirstRows(gains.Kus, targetInput, rows, firstMove);
+            Targets(reference, targetState, targetInput);
             var target = MakeTarget(reference, targetState, targetInput, limited: false);
             if (!target.ReferenceReached)
             {
@@ -262,41 +258,30 @@ public sealed class CompiledModel
             }
         }
 
-        if (request.PreviousInput is { } previous)
-        {
-            AddFirstRows(gains.Kup, previous, rows, firstMove);
-        }
-
-        for (int i = 0; i < m; i++)
-        {
-            firstMove[i] = -firstMove[i];
-        }
-
-        double cost = gains.CostForm.Evaluate(request.State, request.PreviousInput, request.Reference, targetState, targetInput);
+        gains.Apply(request.State, request.Reference, targetState, targetInput, request.PreviousInput, firstMove);
+        double cost = gains.CostForm.Evaluate(request.State, request.Reference, targetState, targetInput, request.PreviousInput);
         if (!double.IsFinite(cost) || !DenseKernels.AllFinite(firstMove))
         {
-            throw Overflow();
+            throw Overflow(request, gains);
         }
 
         return new FirstMoveResult(PlanStatus.Optimal, Math.Max(cost, 0), warnings);
     }
 
-    /// <summary>y += (first y.Length rows of the column-major map with <paramref name="rows"/> rows) · x.</summary>
-    private static void AddFirstRows(double[] map, ReadOnlySpan<double> x, int rows, Span<double> y)
+    /// <summary>
+    /// x_s and u_s for <paramref name="reference"/> from the target maps; under input limits, replaced by the limited
+    /// target when the unconstrained one breaks a limit. Returns true when it was.
+    /// </summary>
+    private bool Targets(double[] reference, Span<double> targetState, Span<double> targetInput)
     {
-        for (int j = 0; j < x.Length; j++)
-        {
-            if (x[j] != 0)
-            {
-                DenseKernels.Axpy(x[j], map.AsSpan(j * rows, y.Length), y);
-            }
-        }
+        DenseKernels.Multiply(targets.StateMap, reference, targetState);
+        DenseKernels.Multiply(targets.InputMap, reference, targetInput);
+        return targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
     }
 
-    /// <summary>Finite but enormous request values can still overflow the prediction; refuse them as a bad request.</summary>
-    private static ModelValidationException Overflow() => new(
-        "state",
-        "the values are too large: the predicted trajectory or its cost overflows for this plant and horizon");
+    /// <summary>Finite but enormous request values can still overflow the prediction; refuse them as a bad request naming the field.</summary>
+    private ModelValidationException Overflow(PlanRequest request, GainSet gains) =>
+        PredictionOverflow.Refusal(PredictionOverflow.Blame(request, gains, targets, trajectory, Horizon, StateCount, InputCount, OutputCount));
 
     /// <summary>The same test as <see cref="ValidateRequest"/> without building an error list.</summary>
     private bool IsWellFormed(PlanRequest request)
@@ -317,7 +302,7 @@ public sealed class CompiledModel
         try
         {
             var gradient = rented.AsSpan(0, DecisionVariables);
-            for (int pass = 0; pass < 2; pass++)
+            for (int pass = 0; pass < RefinementSteps; pass++)
             {
                 trajectory.Gradient(plan.Inputs, plan.States, plan.Outputs, Horizon, request.Reference, targetState, targetInput, request.PreviousInput, gradient);
                 gains.Factor.Solve(gradient);
@@ -348,7 +333,7 @@ public sealed class CompiledModel
             scale = Math.Max(scale, Math.Abs(reference[j]));
         }
 
-        return new SteadyStateTarget(state.ToArray(), input.ToArray(), output, worst <= 1e-9 * scale, limited) { OutputError = worst };
+        return new SteadyStateTarget(state.ToArray(), input.ToArray(), output, worst <= ReferenceReachedTolerance * scale, limited) { OutputError = worst };
     }
 
     private static void CheckVector(double[]? vector, string path, int size, bool required, List<ValidationError> errors)

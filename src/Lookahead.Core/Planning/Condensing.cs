@@ -9,8 +9,12 @@ namespace Lookahead.Core.Planning;
 /// </summary>
 internal static class Condensing
 {
-    /// <summary>The Hessian and the gradient maps f = Fx·x_0 + Fr·r + Fxs·x_s + Fus·u_s + Fup·u_{−1} (each N·m rows).</summary>
-    /// <param name="FreeCost">J at U = 0 as a quadratic form zᵀM₀z in z = [x_0; u_{−1}; r; x_s; u_s] (see <see cref="CostForm"/>).</param>
+    /// <summary>
+    /// The Hessian and the gradient maps f = Fx·x_0 + Fr·r + Fxs·x_s + Fus·u_s + Fup·u_{−1} (each N·m rows), so that
+    /// J(U) = UᵀHU + 2fᵀU + zᵀM₀z with z the request in <see cref="RequestLayout"/> order, which is also the order
+    /// of the maps above.
+    /// </summary>
+    /// <param name="FreeCost">M₀: J at U = 0 as a quadratic form of z (see <see cref="CostForm.Assemble"/>).</param>
     public sealed record Result(Matrix<double> Hessian, Matrix<double> Fx, Matrix<double> Fr, Matrix<double> Fxs, Matrix<double> Fus, Matrix<double> Fup, Matrix<double> FreeCost);
 
     public static Result Build(

@@ -4,88 +4,116 @@ using MathNet.Numerics.LinearAlgebra;
 namespace Lookahead.Core.Planning;
 
 /// <summary>
-/// The optimal unconstrained cost as a quadratic form, J* = zᵀMz with z = [x_0; u_{−1}; r; x_s; u_s], so that a
-/// first-move-only answer (replay) needs no trajectory. M = M₀ − FᵀH⁻¹F where M₀ is J at U = 0 and F the
-/// gradient maps. The order puts the always-present x_0 first and the previous input next, so regulation
-/// reads only a leading block of M.
+/// The optimal unconstrained cost as a quadratic form of the request, J* = zᵀMz with z ordered as
+/// <see cref="RequestLayout"/> says, so that a first-move-only answer (replay) needs no trajectory.
+/// M = M₀ − FᵀH⁻¹F where M₀ is J at U = 0 and F the gradient maps.
 /// </summary>
 internal sealed class CostForm
 {
     private readonly double[] form;
-    private readonly int n;
-    private readonly int m;
-    private readonly int p;
+    private readonly RequestLayout layout;
 
+    /// <param name="free">M₀ (see <see cref="Assemble"/>).</param>
+    /// <param name="gradientMaps">F = [Fx Fr Fxs Fus Fup], N·m × <see cref="RequestLayout.Size"/>.</param>
+    /// <param name="gains">K = H⁻¹F, same shape and column order.</param>
     public CostForm(Matrix<double> free, Matrix<double> gradientMaps, Matrix<double> gains, int n, int m, int p)
     {
-        this.n = n;
-        this.m = m;
-        this.p = p;
-        Size = n + m + p + n + m;
-
-        // F and K = H⁻¹F have columns in the order [x_0; r; x_s; u_s; u_{−1}]; reorder them to z's order.
-        int[] order = [.. Enumerable.Range(0, n), .. Enumerable.Range(n + p + n + m, m), .. Enumerable.Range(n, p), .. Enumerable.Range(n + p, n), .. Enumerable.Range(n + p + n, m)];
-        var f = Matrix<double>.Build.Dense(gradientMaps.RowCount, Size, (i, j) => gradientMaps[i, order[j]]);
-        var k = Matrix<double>.Build.Dense(gains.RowCount, Size, (i, j) => gains[i, order[j]]);
-        var total = free - f.TransposeThisAndMultiply(k);
+        layout = new RequestLayout(n, m, p);
+        var total = free - gradientMaps.TransposeThisAndMultiply(gains);
         form = DenseMatrix.RowMajor((total + total.Transpose()) * 0.5);
     }
 
-    public int Size { get; }
+    public int Size => layout.Size;
 
-    /// <summary>M₀ from its blocks (z order: x_0, u_{−1}, r, x_s, u_s); <paramref name="s"/> null means no Δu_0 term.</summary>
+    /// <summary>M₀ from its blocks in <see cref="RequestLayout"/> order; <paramref name="s"/> null means no Δu_0 term.</summary>
+    /// <param name="xx">x_0–x_0 block (n×n).</param>
+    /// <param name="xr">x_0–r block (n×p).</param>
+    /// <param name="rr">r–r block (p×p).</param>
+    /// <param name="xxs">x_0–x_s block (n×n).</param>
+    /// <param name="xsxs">x_s–x_s block (n×n).</param>
+    /// <param name="usus">u_s–u_s block (m×m).</param>
+    /// <param name="s">u_{−1}–u_{−1} block (m×m), or null.</param>
     public static Matrix<double> Assemble(int n, int m, int p, Matrix<double> xx, Matrix<double> xr, Matrix<double> rr, Matrix<double> xxs, Matrix<double> xsxs, Matrix<double> usus, Matrix<double>? s)
     {
-        int size = n + m + p + n + m;
-        int up = n;
-        int r = n + m;
-        int xs = n + m + p;
-        int us = n + m + p + n;
-        var result = Matrix<double>.Build.Dense(size, size);
-        result.SetSubMatrix(0, 0, xx);
-        result.SetSubMatrix(0, r, xr);
-        result.SetSubMatrix(r, 0, xr.Transpose());
-        result.SetSubMatrix(r, r, rr);
-        result.SetSubMatrix(0, xs, xxs);
-        result.SetSubMatrix(xs, 0, xxs.Transpose());
-        result.SetSubMatrix(xs, xs, xsxs);
-        result.SetSubMatrix(us, us, usus);
+        var at = new RequestLayout(n, m, p);
+        var result = Matrix<double>.Build.Dense(at.Size, at.Size);
+        result.SetSubMatrix(at.StateStart, at.StateStart, xx);
+        result.SetSubMatrix(at.StateStart, at.ReferenceStart, xr);
+        result.SetSubMatrix(at.ReferenceStart, at.StateStart, xr.Transpose());
+        result.SetSubMatrix(at.ReferenceStart, at.ReferenceStart, rr);
+        result.SetSubMatrix(at.StateStart, at.TargetStateStart, xxs);
+        result.SetSubMatrix(at.TargetStateStart, at.StateStart, xxs.Transpose());
+        result.SetSubMatrix(at.TargetStateStart, at.TargetStateStart, xsxs);
+        result.SetSubMatrix(at.TargetInputStart, at.TargetInputStart, usus);
         if (s is not null)
         {
-            result.SetSubMatrix(up, up, s);
+            result.SetSubMatrix(at.PreviousInputStart, at.PreviousInputStart, s);
         }
 
         return result;
     }
 
-    /// <summary>zᵀMz over the leading block that the request fills: x_0, then u_{−1}, then the tracking terms.</summary>
-    public double Evaluate(ReadOnlySpan<double> state, ReadOnlySpan<double> previousInput, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput)
+    /// <summary>
+    /// zᵀMz over the blocks the request fills: x_0 always, r with x_s and u_s when a reference is given, u_{−1}
+    /// when a previous input is given. Absent blocks are zero and are not read, so regulation costs n² operations.
+    /// </summary>
+    public double Evaluate(ReadOnlySpan<double> state, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput)
     {
-        Span<double> z = Size <= 1024 ? stackalloc double[Size] : new double[Size];
+        int size = layout.Size;
+        Span<double> z = StackScratch.Fits(size) ? stackalloc double[size] : new double[size];
         z.Clear();
-        state.CopyTo(z);
-        int used = n;
-        if (!previousInput.IsEmpty)
-        {
-            previousInput.CopyTo(z[n..]);
-            used = n + m;
-        }
+        state.CopyTo(z[layout.StateStart..]);
 
+        // The filled entries are one leading run [0, leading) and, with a previous input but no reference, a
+        // trailing run for u_{−1} after the empty reference blocks.
+        int leading = layout.ReferenceStart;
         if (!reference.IsEmpty)
         {
-            reference.CopyTo(z[(n + m)..]);
-            targetState.CopyTo(z[(n + m + p)..]);
-            targetInput.CopyTo(z[(n + m + p + n)..]);
-            used = Size;
+            reference.CopyTo(z[layout.ReferenceStart..]);
+            targetState.CopyTo(z[layout.TargetStateStart..]);
+            targetInput.CopyTo(z[layout.TargetInputStart..]);
+            leading = layout.PreviousInputStart;
         }
 
-        double sum = 0;
-        for (int i = 0; i < used; i++)
+        int trailing = 0;
+        if (!previousInput.IsEmpty)
         {
-            if (z[i] != 0)
+            previousInput.CopyTo(z[layout.PreviousInputStart..]);
+            if (reference.IsEmpty)
             {
-                sum += z[i] * DenseKernels.Dot(form.AsSpan(i * Size, used), z[..used]);
+                trailing = layout.InputCount;
             }
+            else
+            {
+                leading = size;
+            }
+        }
+
+        int tail = size - trailing;
+        double sum = Rows(0, leading, leading, tail, trailing, z);
+        return sum + Rows(tail, trailing, leading, tail, trailing, z);
+    }
+
+    /// <summary>Σ_{i ∈ [from, from + count)} z_i (M_i,[0,leading) z_[0,leading) + M_i,[tail,tail+trailing) z_[tail,…)).</summary>
+    private double Rows(int from, int count, int leading, int tail, int trailing, ReadOnlySpan<double> z)
+    {
+        int size = layout.Size;
+        double sum = 0;
+        for (int i = from; i < from + count; i++)
+        {
+            if (z[i] == 0)
+            {
+                continue;
+            }
+
+            var row = form.AsSpan(i * size, size);
+            double product = DenseKernels.Dot(row[..leading], z[..leading]);
+            if (trailing > 0)
+            {
+                product += DenseKernels.Dot(row.Slice(tail, trailing), z.Slice(tail, trailing));
+            }
+
+            sum += z[i] * product;
         }
 
         return sum;

@@ -2,9 +2,10 @@ using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Planning;
 
-/// <summary>Conversions between MathNet matrices and the row-major arrays the request-time kernels read.</summary>
+/// <summary>Conversions between MathNet matrices and the flat arrays the request-time kernels read.</summary>
 internal static class DenseMatrix
 {
+    /// <summary>Row-major copy: row i at i·ColumnCount.</summary>
     public static double[] RowMajor(Matrix<double> m)
     {
         var result = new double[m.RowCount * m.ColumnCount];
@@ -19,7 +20,7 @@ internal static class DenseMatrix
         return result;
     }
 
-    /// <summary>Column-major copy: column j at j·RowCount. Read as row-major it is the transpose.</summary>
+    /// <summary>Column-major copy: column j at j·RowCount (for DenseKernels' column and transposed kernels).</summary>
     public static double[] ColumnMajor(Matrix<double> m) => m.ToColumnMajorArray();
 
     public static double[][] Rows(Matrix<double> m) => m.ToRowArrays();

@@ -36,8 +36,19 @@ public sealed class Plan
     /// <summary>y_0 … y_N, row-major (N+1)×p.</summary>
     public double[] Outputs { get; }
 
-    /// <summary>J as defined on <see cref="CompiledModel"/>, including the constant x_0 term and any soft-limit penalty.</summary>
+    /// <summary>
+    /// J as defined on <see cref="CompiledModel"/>, including the constant x_0 term, evaluated on this plan's
+    /// trajectory. It never includes the soft-limit penalty; that is <see cref="SoftLimitPenalty"/>.
+    /// </summary>
     public double Cost { get; internal set; }
+
+    /// <summary>
+    /// Σ_j (ρ ε_j + w_j ε_j²) at the solution: the price the limited solve paid for the soft output limits it could
+    /// not meet (ε_j the largest violation of output j, w_j its violation weight, ρ the linear weight used).
+    /// 0 when no soft limit is exceeded beyond rounding (no <see cref="WarningCode.SoftOutputLimitExceeded"/> warning)
+    /// or the model has none. The solve minimised <see cref="Cost"/> plus this.
+    /// </summary>
+    public double SoftLimitPenalty { get; internal set; }
 
     /// <summary>Set when the request carried a reference.</summary>
     public SteadyStateTarget? Target { get; internal set; }

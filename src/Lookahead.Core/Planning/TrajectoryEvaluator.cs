@@ -28,7 +28,8 @@ internal sealed class TrajectoryEvaluator
         n = a.RowCount;
         m = b.ColumnCount;
         p = c.RowCount;
-        // Column-major: A x is a run of AXPYs, and the same arrays read row-major give Aᵀ, Bᵀ, Cᵀ for the adjoint.
+        // Column-major: the rollout's A x + B u is a run of AXPYs (DenseKernels.MultiplyColumns), and the adjoint's
+        // Aᵀμ, Bᵀμ, CᵀQ(y − r) are contiguous dot products on the same arrays (DenseKernels.MultiplyTransposedAdd).
         this.a = DenseMatrix.ColumnMajor(a);
         this.b = DenseMatrix.ColumnMajor(b);
         this.c = DenseMatrix.ColumnMajor(c);
@@ -113,8 +114,8 @@ internal sealed class TrajectoryEvaluator
             return sum;
         }
 
-        Span<double> dy = p <= 256 ? stackalloc double[p] : new double[p];
-        Span<double> du = m <= 256 ? stackalloc double[m] : new double[m];
+        Span<double> dy = StackScratch.Fits(p) ? stackalloc double[p] : new double[p];
+        Span<double> du = StackScratch.Fits(m) ? stackalloc double[m] : new double[m];
         Difference(y, reference, dy);
         double cost = DenseKernels.QuadraticForm(q, dy, qDiagonal);
         Difference(u, targetInput, du);
@@ -154,7 +155,7 @@ internal sealed class TrajectoryEvaluator
     /// <summary>(x_N − x_s)ᵀP(x_N − x_s).</summary>
     public double TerminalCost(ReadOnlySpan<double> xN, ReadOnlySpan<double> targetState)
     {
-        Span<double> dx = n <= 256 ? stackalloc double[n] : new double[n];
+        Span<double> dx = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
         Difference(xN, targetState, dx);
         return DenseKernels.QuadraticForm(terminal, dx, terminalDiagonal);
     }
@@ -166,11 +167,11 @@ internal sealed class TrajectoryEvaluator
     /// </summary>
     public void Gradient(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput, Span<double> gradient)
     {
-        Span<double> mu = n <= 256 ? stackalloc double[n] : new double[n];
-        Span<double> next = n <= 256 ? stackalloc double[n] : new double[n];
-        Span<double> dy = p <= 256 ? stackalloc double[p] : new double[p];
-        Span<double> qdy = p <= 256 ? stackalloc double[p] : new double[p];
-        Span<double> du = m <= 256 ? stackalloc double[m] : new double[m];
+        Span<double> mu = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
+        Span<double> next = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
+        Span<double> dy = StackScratch.Fits(p) ? stackalloc double[p] : new double[p];
+        Span<double> qdy = StackScratch.Fits(p) ? stackalloc double[p] : new double[p];
+        Span<double> du = StackScratch.Fits(m) ? stackalloc double[m] : new double[m];
         Difference(states.Slice(horizon * n, n), targetState, next);
         mu.Clear();
         DenseKernels.MultiplyAdd(terminal, next, mu);
@@ -181,7 +182,7 @@ internal sealed class TrajectoryEvaluator
             var uk = inputs.Slice(k * m, m);
             Difference(uk, targetInput, du);
             DenseKernels.MultiplyAdd(r, du, g);
-            DenseKernels.MultiplyAdd(b, mu, g);
+            DenseKernels.MultiplyTransposedAdd(b, mu, g);
             if (hasRateWeight)
             {
                 if (k > 0 || !previousInput.IsEmpty)
@@ -206,7 +207,7 @@ internal sealed class TrajectoryEvaluator
             {
                 // μ_k = CᵀQ(y_k − r) + Aᵀμ_{k+1}
                 next.Clear();
-                DenseKernels.MultiplyAdd(a, mu, next);
+                DenseKernels.MultiplyTransposedAdd(a, mu, next);
                 Difference(outputs.Slice(k * p, p), reference, dy);
                 DenseKernels.Multiply(q, dy, qdy);
                 if (outputIsState)
@@ -218,7 +219,7 @@ internal sealed class TrajectoryEvaluator
                 }
                 else
                 {
-                    DenseKernels.MultiplyAdd(c, qdy, next);
+                    DenseKernels.MultiplyTransposedAdd(c, qdy, next);
                 }
 
                 next.CopyTo(mu);

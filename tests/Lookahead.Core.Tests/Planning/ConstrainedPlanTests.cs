@@ -51,7 +51,8 @@ public class ConstrainedPlanTests
 
         Assert.Equal(PlanStatus.Optimal, plan.Status);
         Assertions.Close(c.GetProperty("inputs").Matrix().Flatten(), plan.Inputs, 1e-6, name + ".inputs");
-        Assertions.CloseScalar(c.GetProperty("cost").GetDouble(), plan.Cost, 1e-8, name + ".cost");
+        Assertions.CloseScalar(c.GetProperty("costWithoutPenalty").GetDouble(), plan.Cost, 1e-8, name + ".cost");
+        Assertions.CloseScalar(c.GetProperty("cost").GetDouble(), plan.Cost + plan.SoftLimitPenalty, 1e-8, name + ".costWithPenalty");
         var expectedSlack = c.GetProperty("slack").Vector().Where((_, j) => IsLimited(c, j)).ToArray();
         Assertions.Close(expectedSlack, Slacks(model, plan), 1e-6, name + ".slack");
         Kkt.CheckPlan(model, request, plan, rho, Slacks(model, plan));
@@ -143,6 +144,7 @@ public class ConstrainedPlanTests
         var plan = model.Plan(request);
         Assert.Equal(PlanStatus.Optimal, plan.Status);
         Assert.True(plan.MaxOutputViolation <= 1e-9, $"violation {plan.MaxOutputViolation:g3}");
+        Assert.Equal(0, plan.SoftLimitPenalty);
         Assert.Contains(plan.ActiveLimits, l => l.Kind == LimitKind.OutputMin);
         Kkt.CheckPlan(model, request, plan, null, Slacks(model, plan));
     }
@@ -157,7 +159,42 @@ public class ConstrainedPlanTests
         Assert.Equal(PlanStatus.Optimal, plan.Status);
         Assert.True(plan.MaxOutputViolation > 0.1);
         Assert.Contains(plan.Warnings, w => w.Code == WarningCode.SoftOutputLimitExceeded && w.Output == 0 && Math.Abs(w.Amount!.Value - plan.MaxOutputViolation) < 1e-12);
-        Kkt.CheckPlan(model, request, plan, model.ConstrainedWithoutPrevious!.AutomaticLinearWeight * 1e6, Slacks(model, plan), 1e-6);
+        Kkt.CheckPlan(model, request, plan, model.ConstrainedWithoutPrevious!.SoftLimits.AutomaticLinearWeight * 1e6, Slacks(model, plan), 1e-6);
+    }
+
+    [Fact]
+    public void CostOfAPlanThatViolatesASoftLimitIsJAlone()
+    {
+        // Moving fast towards a wall the input cannot stop in time: the soft limit y_0 ≤ 1 cannot be met.
+        var model = DoubleIntegrator(new LimitsSpec(InputMin: [-0.1], InputMax: [0.1], OutputMax: [1.0, null], OutputViolationWeight: [10.0, 0.0]));
+        var request = new PlanRequest([0.0, 1.0]);
+        var plan = model.Plan(request);
+        Assert.True(plan.MaxOutputViolation > 0.1, "precondition: the soft limit is violated");
+
+        // J from the definition on CompiledModel, evaluated here on the plan's own trajectory (no reference, no
+        // previous input, no rate weight): Σ_{k<N} y_kᵀQy_k + u_kᵀRu_k + x_NᵀPx_N with Q = diag(1, 0.1), R = 0.1.
+        double[] q = [1.0, 0.1];
+        double expected = 0;
+        for (int k = 0; k < plan.Horizon; k++)
+        {
+            var y = plan.Output(k);
+            expected += (q[0] * y[0] * y[0]) + (q[1] * y[1] * y[1]) + (0.1 * plan.Input(k)[0] * plan.Input(k)[0]);
+        }
+
+        var xN = plan.State(plan.Horizon);
+        var p = model.TerminalWeight;
+        for (int i = 0; i < 2; i++)
+        {
+            for (int j = 0; j < 2; j++)
+            {
+                expected += xN[i] * p[i][j] * xN[j];
+            }
+        }
+
+        Assertions.CloseScalar(expected, plan.Cost, 1e-12, "cost");
+        Assert.True(plan.SoftLimitPenalty > 0, $"penalty {plan.SoftLimitPenalty:g3}");
+        var move = new double[1];
+        Assert.Equal(plan.Cost, model.FirstMove(request, move).Cost);
     }
 
     [Fact]
@@ -168,6 +205,25 @@ public class ConstrainedPlanTests
         Assert.Equal(PlanStatus.Infeasible, plan.Status);
         Assert.Contains(plan.Warnings, w => w.Code == WarningCode.FirstMoveRateRelaxed && w.Input == 0);
         Assert.All(plan.Inputs, u => Assert.InRange(u, -1.0, 1.0));
+    }
+
+    [Fact]
+    public void OnlyTheUnreachableInputHasItsFirstRateLimitRelaxed()
+    {
+        // Two independent first-order lags. Input 0 was left at 1.8, outside its window [−1, 1] and more than its
+        // rate limit 0.2 away from it; input 1 sits at 0 and is asked to move hard by x_1 = 5.
+        var model = ModelCompiler.Compile(TestModels.Discrete(
+            [[0.9, 0.0], [0.0, 0.8]], [[1.0, 0.0], [0.0, 1.0]], 10, [1.0, 1.0], [0.1, 0.1],
+            limits: new LimitsSpec(InputMin: [-1.0, -1.0], InputMax: [1.0, 1.0], InputRateMin: [-0.2, -0.1], InputRateMax: [0.2, 0.1])));
+        var request = new PlanRequest([0.0, 5.0], PreviousInput: [1.8, 0.0]);
+        var plan = model.Plan(request);
+
+        Assert.Equal(PlanStatus.Infeasible, plan.Status);
+        var relaxed = Assert.Single(plan.Warnings, w => w.Code == WarningCode.FirstMoveRateRelaxed);
+        Assert.Equal(0, relaxed.Input);
+        Assert.InRange(plan.Input(0)[1] - 0.0, -0.1 - 1e-12, 0.1 + 1e-12);
+        Assert.All(plan.Inputs, u => Assert.InRange(u, -1.0, 1.0));
+        Kkt.CheckPlan(model, request, plan, null, [], relaxedFirstRateInputs: [0]);
     }
 
     [Fact]

@@ -58,7 +58,7 @@ public class ConstrainedPropertyTests
 
         // Rate limits validated to contain 0 and a previous input inside the window always leave a feasible plan.
         var previous = scenario.Request.PreviousInput;
-        bool previousInsideWindow = previous is null || !model.ConstrainedWithPrevious!.UnreachableFirstMoves(previous).Any();
+        bool previousInsideWindow = previous is null || !model.ConstrainedWithPrevious!.Rows.UnreachableFirstMoves(previous).Any();
         Assert.True(
             !previousInsideWindow || plan.Status == PlanStatus.Optimal,
             $"{Describe(model, scenario)}: status {plan.Status} after {plan.Iterations} iterations, " +

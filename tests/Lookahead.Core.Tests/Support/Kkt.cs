@@ -171,27 +171,39 @@ public static class Kkt
     }
 
     /// <summary>KKT of a limited plan: gradient of J/2 by the adjoint recursion plus the slack terms.</summary>
-    internal static void CheckPlan(CompiledModel model, PlanRequest request, Plan plan, double? linearWeight, double[] slack, double tolerance = 1e-8)
+    /// <param name="relaxedFirstRateInputs">Inputs whose k = 0 rate limits the checked problem leaves out (none when null).</param>
+    internal static void CheckPlan(CompiledModel model, PlanRequest request, Plan plan, double? linearWeight, double[] slack, double tolerance = 1e-8, IReadOnlyCollection<int>? relaxedFirstRateInputs = null)
     {
         var problem = request.PreviousInput is null ? model.ConstrainedWithoutPrevious! : model.ConstrainedWithPrevious!;
         int nm = model.DecisionVariables;
-        var x = new double[nm + problem.SlackCount];
+        var x = new double[nm + problem.SoftLimits.Count];
         plan.Inputs.CopyTo(x, 0);
-        for (int s = 0; s < problem.SlackCount; s++)
+        for (int s = 0; s < problem.SoftLimits.Count; s++)
         {
             x[nm + s] = slack[s];
         }
 
         var gradient = new double[x.Length];
         model.Trajectory.Gradient(plan.Inputs, plan.States, plan.Outputs, plan.Horizon, request.Reference, plan.Target?.State, plan.Target?.Input, request.PreviousInput, gradient.AsSpan(0, nm));
-        double rho = linearWeight ?? problem.AutomaticLinearWeight;
-        for (int s = 0; s < problem.SlackCount; s++)
+        double rho = linearWeight ?? problem.SoftLimits.AutomaticLinearWeight;
+        for (int s = 0; s < problem.SoftLimits.Count; s++)
         {
-            gradient[nm + s] = (rho / 2) + (problem.SlackWeights[s] * slack[s]);
+            gradient[nm + s] = (rho / 2) + (problem.SoftLimits.Weights[s] * slack[s]);
         }
 
         var rhs = new double[problem.RowCount];
-        problem.RightHandSides(request.State, request.PreviousInput, false, rhs);
+        problem.Rows.RightHandSides(request.State, request.PreviousInput, [], rhs);
+
+        // The relaxed problem is built here, from what each row stands for, not by the code under test.
+        for (int row = 0; row < rhs.Length; row++)
+        {
+            var what = problem.Rows.Meaning(row);
+            if (what.Step == 0 && what.Kind is LimitKind.InputRateMin or LimitKind.InputRateMax && relaxedFirstRateInputs?.Contains(what.Index) == true)
+            {
+                rhs[row] = double.NegativeInfinity;
+            }
+        }
+
         Check(gradient, problem.Solver.Constraints, rhs, 0, x, tolerance, plan.Status.ToString());
     }
 }

@@ -1,7 +1,8 @@
 using Lookahead.Core.Numerics;
+using Lookahead.Core.Optimization;
 using MathNet.Numerics.LinearAlgebra;
 
-namespace Lookahead.Core.Optimization;
+namespace Lookahead.Core.Tests.Support;
 
 /// <summary>The answer to a general convex QP.</summary>
 /// <param name="Objective">½xᵀGx + aᵀx at the solution (no constant).</param>
@@ -17,7 +18,26 @@ public sealed record QuadraticProgramSolution(QpStatus Status, double[] X, doubl
 /// </summary>
 public static class QuadraticProgram
 {
+    /// <summary>Proximal steps allowed: the iterates of a degenerate program creep, so the cap is generous but finite.</summary>
     public const int MaxOuterIterations = 20_000;
+
+    /// <summary>Default active-set cap: at least this many iterations …</summary>
+    private const int MinIterations = 50;
+
+    /// <summary>… or this many per row and variable, enough for every row to enter and leave a few times.</summary>
+    private const int IterationsPerSize = 3;
+
+    /// <summary>Floor for λ_max, so the relative tests below keep a positive scale when G = 0.</summary>
+    private const double SmallestScale = 1e-300;
+
+    /// <summary>G counts as positive definite when its smallest eigenvalue exceeds this fraction of its largest (the relative 1e-10 the model validator uses for definiteness).</summary>
+    private const double DefinitenessRatio = 1e-10;
+
+    /// <summary>Proximal weight μ relative to max(1, λ_max): small enough to move fast, large enough to keep G + μI well conditioned.</summary>
+    private const double ProximalWeight = 1e-3;
+
+    /// <summary>The proximal iterates have converged when no entry moves more than this relative to max(1, ‖x‖∞).</summary>
+    private const double ConvergedMove = 1e-13;
 
     public static QuadraticProgramSolution Solve(double[][] g, double[] a, double[][] equalities, double[] equalityRhs, double[][] inequalities, double[] inequalityRhs, int? maxIterations = null)
     {
@@ -32,11 +52,11 @@ public static class QuadraticProgram
 
         var sparse = new SparseRows(n, rows);
         double[] rhs = [.. equalityRhs, .. inequalityRhs];
-        int cap = maxIterations ?? Math.Max(50, 3 * (rows.Count + n));
+        int cap = maxIterations ?? Math.Max(MinIterations, IterationsPerSize * (rows.Count + n));
 
         var eigenvalues = gm.Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
-        double largest = Math.Max(eigenvalues.Max(), 1e-300);
-        bool definite = eigenvalues.Min() > 1e-10 * largest;
+        double largest = Math.Max(eigenvalues.Max(), SmallestScale);
+        bool definite = eigenvalues.Min() > DefinitenessRatio * largest;
         if (definite)
         {
             var solver = new DualActiveSetSolver(new CholeskyFactor(gm), sparse, equalities.Length);
@@ -45,7 +65,7 @@ public static class QuadraticProgram
             return new QuadraticProgramSolution(result.Status, x, Objective(gm, a, x), result.Iterations, 1);
         }
 
-        double mu = 1e-3 * Math.Max(1.0, largest);
+        double mu = ProximalWeight * Math.Max(1.0, largest);
         var regularised = new DualActiveSetSolver(new CholeskyFactor(gm + (mu * Matrix<double>.Build.DenseIdentity(n))), sparse, equalities.Length);
         var workspace = regularised.CreateWorkspace();
         var current = new double[n];
@@ -76,7 +96,7 @@ public static class QuadraticProgram
             }
 
             (current, next) = (next, current);
-            if (outer > 1 && move <= 1e-13 * size)
+            if (outer > 1 && move <= ConvergedMove * size)
             {
                 return new QuadraticProgramSolution(QpStatus.Optimal, current, Objective(gm, a, current), total, outer);
             }
