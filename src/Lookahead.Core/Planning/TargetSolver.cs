@@ -58,6 +58,12 @@ internal sealed class TargetSolver
     private readonly int cutCap;
     private readonly ConcurrentBag<TargetWorkspace> pool = new();
 
+    /// <summary>Goldfarb–Idnani adds about one row per iteration and drops fewer; ten per row bounds the work generously.</summary>
+    private const int IterationsPerRow = 10;
+
+    /// <summary>Cuts are distinct dependencies among the 2m limit rows, in practice a few per binding limit; the cap only bounds pathological counts.</summary>
+    private const int CutsPerRow = 10;
+
     public TargetSolver(Matrix<double> a, Matrix<double> b, Matrix<double> c, Matrix<double> outputWeight, ValidatedLimits limits)
     {
         this.limits = limits;
@@ -66,12 +72,8 @@ internal sealed class TargetSolver
         int rho = coordinates.OutputRank;
         int m = coordinates.Inputs;
 
-        // Goldfarb–Idnani adds about one row per iteration and drops fewer; ten times the rows bounds the work generously.
-        iterationCap = 10 * (d + (2 * m) + 10);
-
-        // Cuts are distinct dependencies among the 2m limit rows; in practice a few per binding limit. The cap only
-        // bounds pathological counts.
-        cutCap = 10 * ((2 * m) + rho + 2);
+        iterationCap = IterationsPerRow * (d + (2 * m) + IterationsPerRow);
+        cutCap = CutsPerRow * ((2 * m) + rho + 2);
         if (rho > 0)
         {
             var curvature = coordinates.Curvature.Select(v => v * v).ToArray();
