@@ -33,7 +33,8 @@ public sealed class PlanRunner
     }
 
     /// <summary>Plans <paramref name="call"/> unless parsing already found errors; afterwards either Outcome or Errors is set.</summary>
-    public void Run(CompiledModel model, PlanCall call, PlanDepth depth, PlanRoute route)
+    /// <param name="warmStart">For consecutive requests (replay rows in order): start from the previous plan's active limits.</param>
+    public void Run(CompiledModel model, PlanCall call, PlanDepth depth, PlanRoute route, PlanWarmStart? warmStart = null)
     {
         if (call.Errors.Count > 0)
         {
@@ -46,7 +47,7 @@ public sealed class PlanRunner
             var request = call.ToRequest();
             if (depth == PlanDepth.Full)
             {
-                var plan = model.Plan(request);
+                var plan = model.Plan(request, warmStart);
                 call.Plan = plan;
                 plan.Input(0).CopyTo(call.FirstMove);
                 call.Outcome = new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
@@ -54,7 +55,7 @@ public sealed class PlanRunner
             else
             {
                 // Historians mostly want u_0: the first-move path skips the trajectory when the model allows it.
-                call.Outcome = model.FirstMove(request, call.FirstMove);
+                call.Outcome = model.FirstMove(request, call.FirstMove, warmStart);
             }
         }
         catch (ModelValidationException ex)

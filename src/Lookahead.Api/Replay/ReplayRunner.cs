@@ -18,51 +18,70 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
         int n = model.StateCount, m = model.InputCount, p = model.OutputCount;
         var current = new ReplayBatch(size, n, m, p);
         var spare = new ReplayBatch(size, n, m, p);
-        var parallel = new ParallelOptions
-        {
-            MaxDegreeOfParallelism = options.Value.MaxDegreeOfParallelism > 0 ? options.Value.MaxDegreeOfParallelism : Environment.ProcessorCount,
-            CancellationToken = cancellationToken,
-        };
+        int workers = options.Value.MaxDegreeOfParallelism > 0 ? options.Value.MaxDegreeOfParallelism : Environment.ProcessorCount;
+        var parallel = new ParallelOptions { MaxDegreeOfParallelism = workers, CancellationToken = cancellationToken };
         long rows = 0, failed = 0;
         var depth = sink.NeedsFullPlan ? PlanDepth.Full : PlanDepth.FirstMove;
 
-        await sink.StartAsync(cancellationToken);
-        var filling = source.FillAsync(current, cancellationToken).AsTask();
-        while (await filling)
+        // Each worker plans one contiguous run of rows in order, carrying the active limits from row to row:
+        // consecutive historian states are alike, so a limited plan mostly starts where the last one ended.
+        var warmStarts = new PlanWarmStart[workers];
+        var scratches = new Utf8JsonWriter[workers];
+        for (int w = 0; w < workers; w++)
         {
-            bool fatal = current[current.Count - 1].Fatal;
+            warmStarts[w] = model.CreateWarmStart();
+            scratches[w] = new Utf8JsonWriter(Stream.Null, new JsonWriterOptions { Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
+        }
 
-            // Read ahead on another thread while this batch is planned.
-            var next = spare;
-            filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, cancellationToken).AsTask(), cancellationToken);
-            var batch = current;
-            Parallel.For(
-                0,
-                batch.Count,
-                parallel,
-                () => new Utf8JsonWriter(Stream.Null, new JsonWriterOptions { Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping }),
-                (i, _, scratch) =>
-                {
-                    var row = batch[i];
-                    source.Parse(row);
-                    planner.Run(model, row, depth, PlanRoute.Replay);
-
-                    sink.Format(row, scratch);
-                    return scratch;
-                },
-                scratch => scratch.Dispose());
-
-            await sink.WriteAsync(batch, cancellationToken);
-            for (int i = 0; i < batch.Count; i++)
+        try
+        {
+            await sink.StartAsync(cancellationToken);
+            var filling = source.FillAsync(current, cancellationToken).AsTask();
+            while (await filling)
             {
-                if (batch[i].Outcome is null)
-                {
-                    failed++;
-                }
-            }
+                bool fatal = current[current.Count - 1].Fatal;
 
-            rows += batch.Count;
-            (current, spare) = (spare, current);
+                // Read ahead on another thread while this batch is planned.
+                var next = spare;
+                filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, cancellationToken).AsTask(), cancellationToken);
+                var batch = current;
+                int runs = Math.Min(workers, batch.Count);
+                Parallel.For(
+                    0,
+                    runs,
+                    parallel,
+                    w =>
+                    {
+                        int from = (int)((long)batch.Count * w / runs);
+                        int to = (int)((long)batch.Count * (w + 1) / runs);
+                        for (int i = from; i < to; i++)
+                        {
+                            var row = batch[i];
+                            source.Parse(row);
+                            planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[w]);
+                            sink.Format(row, scratches[w]);
+                        }
+                    });
+
+                await sink.WriteAsync(batch, cancellationToken);
+                for (int i = 0; i < batch.Count; i++)
+                {
+                    if (batch[i].Outcome is null)
+                    {
+                        failed++;
+                    }
+                }
+
+                rows += batch.Count;
+                (current, spare) = (spare, current);
+            }
+        }
+        finally
+        {
+            foreach (var scratch in scratches)
+            {
+                scratch.Dispose();
+            }
         }
 
         metrics.Rows.WithLabels(format, "planned").Inc(rows - failed);

@@ -20,6 +20,15 @@ public sealed class DualActiveSetSolver
     public const double FeasibilityTolerance = 1e-10;
 
     /// <summary>
+    /// Warm starts in a row before J is rebuilt from J₀: each start reuses the previous updates' rounding, so the
+    /// chain is cut before orthogonality can drift (the rebuild costs one cold solve in this many).
+    /// </summary>
+    public const int MaxWarmChain = 256;
+
+    /// <summary>A rebuilt multiplier above −this counts as nonnegative: rounding of R⁻¹R⁻ᵀs, not a wrong sign.</summary>
+    private const double WarmMultiplierTolerance = 1e-14;
+
+    /// <summary>
     /// A normal whose part outside the active normals' span has ‖z‖² ≤ this × max(1, ‖d‖²) is treated as dependent on
     /// them (no primal step). Squared norms, so a norm ratio of 1e-12: thousands of ulps, room for the rounding J's
     /// updates leave, yet far below the part any genuinely new direction keeps.
@@ -75,7 +84,21 @@ public sealed class DualActiveSetSolver
     /// <param name="rhs">b, one per constraint; −∞ disables an inequality for this solve.</param>
     /// <param name="x">On return the solution; on entry the unconstrained minimiser when <paramref name="unconstrained"/> is true.</param>
     /// <param name="maxIterations">Cap on constraint additions and drops.</param>
-    public QpResult Solve(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace)
+    /// <param name="warmStart">
+    /// Start from the active set the workspace's last solve of this program ended with instead of from none: its
+    /// factorisation is kept, the point and multipliers are rebuilt for the new a and b, constraints whose multipliers
+    /// turn negative (or whose row is switched off) are dropped, and the usual iterations go on from there. The
+    /// optimum is the same as from a cold start (the program is strictly convex); only the path is shorter when
+    /// consecutive solves are alike. Ignored without equalities-free programs or when the workspace holds nothing.
+    /// </param>
+    public QpResult Solve(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace, bool warmStart = false)
+    {
+        var result = SolveFrom(linear, rhs, x, unconstrained, maxIterations, workspace, warmStart);
+        workspace.FactoredCount = result.ActiveCount;
+        return result;
+    }
+
+    private QpResult SolveFrom(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace, bool warmStart)
     {
         int n = Variables;
         int m = Constraints.RowCount;
@@ -92,9 +115,6 @@ public sealed class DualActiveSetSolver
         var u = workspace.Multipliers.AsSpan();
         var active = workspace.Active.AsSpan();
         var isActive = workspace.IsActive.AsSpan();
-        initialJ.CopyTo(j);
-        isActive.Clear();
-
         if (!unconstrained)
         {
             linear.CopyTo(x);
@@ -108,6 +128,24 @@ public sealed class DualActiveSetSolver
         int q = 0;
         int iterations = 0;
         int candidate = -1;
+        bool warm = warmStart && EqualityCount == 0 && workspace.FactoredCount >= 0 && workspace.WarmChain < MaxWarmChain;
+        isActive.Clear();
+        if (warm)
+        {
+            workspace.WarmChain++;
+            q = workspace.FactoredCount;
+            for (int i = 0; i < q; i++)
+            {
+                isActive[active[i]] = true;
+            }
+
+            iterations = Resume(rhs, x, ref q, workspace);
+        }
+        else
+        {
+            workspace.WarmChain = 0;
+            initialJ.CopyTo(j);
+        }
 
         // Equalities first: each is added with a full step; its multiplier has no sign.
         for (int e = 0; e < EqualityCount; e++)
@@ -216,6 +254,91 @@ public sealed class DualActiveSetSolver
                 DropConstraint(blocking, ref q, j, r, u, active, isActive);
                 u[q] = candidateMultiplier;
             }
+        }
+    }
+
+    /// <summary>
+    /// Warm start: with the kept factorisation of the active set A, the minimiser on A and its multipliers are
+    /// x = x₀ + J₁R⁻ᵀs and u = R⁻¹R⁻ᵀs with s = b_A − N_Aᵀx₀ and x₀ the unconstrained minimiser (N_A = L Q₁ R and
+    /// J₁ = L⁻ᵀQ₁, so N_Aᵀ J₁ R⁻ᵀ = I and G⁻¹N_A = J₁R⁻ᵀ). A row switched off for this solve, or the one with the most
+    /// negative multiplier, is dropped and the point rebuilt, until every multiplier is nonnegative: then x, u and A
+    /// are a dual-feasible start for the usual iterations. Returns the drops made (they count as iterations).
+    /// </summary>
+    private int Resume(ReadOnlySpan<double> rhs, Span<double> x, ref int q, QpWorkspace workspace)
+    {
+        int n = Variables;
+        var j = workspace.J.AsSpan();
+        var r = workspace.R.AsSpan();
+        var u = workspace.Multipliers.AsSpan();
+        var active = workspace.Active.AsSpan();
+        var isActive = workspace.IsActive.AsSpan();
+        var start = workspace.Start.AsSpan();
+        var w = workspace.Step.AsSpan();
+        x.CopyTo(start);
+        int drops = 0;
+        while (true)
+        {
+            int drop = -1;
+            for (int i = 0; i < q && drop < 0; i++)
+            {
+                if (double.IsNegativeInfinity(rhs[active[i]]))
+                {
+                    drop = i;
+                }
+            }
+
+            if (drop < 0)
+            {
+                // w = R⁻ᵀs (Rᵀ is lower triangular; R(k, i) sits at r[i·n + k]).
+                for (int i = 0; i < q; i++)
+                {
+                    double sum = rhs[active[i]] - Constraints.Dot(active[i], start);
+                    for (int k = 0; k < i; k++)
+                    {
+                        sum -= r[(i * n) + k] * w[k];
+                    }
+
+                    w[i] = sum / r[(i * n) + i];
+                }
+
+                // u = R⁻¹w, by back substitution; the most negative multiplier, if any, is dropped.
+                double worst = -WarmMultiplierTolerance;
+                for (int i = q - 1; i >= 0; i--)
+                {
+                    double sum = w[i];
+                    for (int k = i + 1; k < q; k++)
+                    {
+                        sum -= r[(k * n) + i] * u[k];
+                    }
+
+                    u[i] = sum / r[(i * n) + i];
+                    if (u[i] < worst)
+                    {
+                        worst = u[i];
+                        drop = i;
+                    }
+                }
+
+                if (drop < 0)
+                {
+                    // Rounding-level negatives become zeros, so ratio tests never see a wrong sign.
+                    for (int i = 0; i < q; i++)
+                    {
+                        u[i] = Math.Max(u[i], 0);
+                    }
+
+                    start.CopyTo(x);
+                    for (int i = 0; i < q; i++)
+                    {
+                        DenseKernels.Axpy(w[i], j.Slice(i * n, n), x);
+                    }
+
+                    return drops;
+                }
+            }
+
+            DropConstraint(drop, ref q, j, r, u, active, isActive);
+            drops++;
         }
     }
 

@@ -1,6 +1,10 @@
 namespace Lookahead.Core.Optimization;
 
-/// <summary>Scratch memory for one solve; rented from a pool so that concurrent plans never share one.</summary>
+/// <summary>
+/// Scratch memory for one solve; rented from a pool so that concurrent plans never share one. It also keeps the
+/// factorisation of the last solve's active set, so a caller that owns a workspace (replay, a closed loop) can warm
+/// start the next solve of the same program from it.
+/// </summary>
 public sealed class QpWorkspace
 {
     public QpWorkspace(int variables, int constraints)
@@ -15,6 +19,7 @@ public sealed class QpWorkspace
         Multipliers = new double[variables + 1];
         Active = new int[variables + 1];
         IsActive = new bool[constraints];
+        Start = new double[variables];
     }
 
     public int Variables { get; }
@@ -38,6 +43,18 @@ public sealed class QpWorkspace
     internal int[] Active { get; }
 
     internal bool[] IsActive { get; }
+
+    /// <summary>The unconstrained minimiser of the current solve, kept while a warm start rebuilds its point.</summary>
+    internal double[] Start { get; }
+
+    /// <summary>
+    /// Size of the active set whose factorisation J, R (and <see cref="Active"/>) the last solve left here, or −1 when
+    /// there is none to start from. A warm start resumes from it.
+    /// </summary>
+    internal int FactoredCount { get; set; } = -1;
+
+    /// <summary>Warm starts in a row since J was last rebuilt from J₀ (rounding accumulates in the updates).</summary>
+    internal int WarmChain { get; set; }
 
     /// <summary>Multipliers of the final active set, in the order of <see cref="ActiveConstraints"/>.</summary>
     public ReadOnlySpan<double> ActiveMultipliers(int count) => Multipliers.AsSpan(0, count);

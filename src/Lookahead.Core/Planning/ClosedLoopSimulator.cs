@@ -34,6 +34,9 @@ public static class ClosedLoopSimulator
         var schedule = request.References ?? [];
         var evaluator = model.Trajectory;
 
+        // Consecutive states of a closed loop are alike: each plan starts from the last one's active limits.
+        var warmStart = model.CreateWarmStart();
+
         for (int k = 0; k < steps; k++)
         {
             while (scheduleIndex + 1 < schedule.Count && schedule[scheduleIndex + 1].FromStep <= k)
@@ -42,7 +45,7 @@ public static class ClosedLoopSimulator
             }
 
             double[]? reference = scheduleIndex >= 0 ? schedule[scheduleIndex].Reference : null;
-            var plan = model.Plan(new PlanRequest(states[k], reference, previous));
+            var plan = model.Plan(new PlanRequest(states[k], reference, previous), warmStart);
             if (plan.Status != PlanStatus.Optimal)
             {
                 nonOptimal++;

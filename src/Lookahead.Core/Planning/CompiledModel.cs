@@ -1,5 +1,6 @@
 using Lookahead.Core.Models;
 using Lookahead.Core.Numerics;
+using Lookahead.Core.Optimization;
 using Lookahead.Core.Validation;
 using MathNet.Numerics.LinearAlgebra;
 
@@ -145,10 +146,19 @@ public sealed class CompiledModel
         return errors;
     }
 
+    /// <summary>A carrier for plans of consecutive states of this model (see <see cref="PlanWarmStart"/>).</summary>
+    public PlanWarmStart CreateWarmStart() => new(this);
+
     /// <summary>The optimal plan for one measured state.</summary>
+    /// <param name="warmStart">When given, a limited plan starts from the active set of the previous plan made with it.</param>
     /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
-    public Plan Plan(PlanRequest request)
+    public Plan Plan(PlanRequest request, PlanWarmStart? warmStart = null)
     {
+        if (warmStart is not null && !ReferenceEquals(warmStart.Model, this))
+        {
+            throw new ArgumentException("the warm start belongs to another model", nameof(warmStart));
+        }
+
         if (!IsWellFormed(request))
         {
             throw new ModelValidationException(ValidateRequest(request));
@@ -178,7 +188,7 @@ public sealed class CompiledModel
         var constrained = request.PreviousInput is null ? constrainedWithoutPrevious : constrainedWithPrevious;
         if (constrained is not null)
         {
-            var outcome = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations);
+            var outcome = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
             plan.Status = outcome.Status;
             plan.Iterations = outcome.Iterations;
             plan.ActiveLimits = outcome.ActiveLimits;
@@ -226,7 +236,8 @@ public sealed class CompiledModel
     /// </summary>
     /// <param name="firstMove">Receives u_0 (m entries).</param>
     /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
-    public FirstMoveResult FirstMove(PlanRequest request, Span<double> firstMove)
+    /// <param name="warmStart">As for <see cref="Plan(PlanRequest, PlanWarmStart?)"/>.</param>
+    public FirstMoveResult FirstMove(PlanRequest request, Span<double> firstMove, PlanWarmStart? warmStart = null)
     {
         if (firstMove.Length != InputCount)
         {
@@ -235,7 +246,7 @@ public sealed class CompiledModel
 
         if (HasLimits || refine || !IsWellFormed(request))
         {
-            var plan = Plan(request);
+            var plan = Plan(request, warmStart);
             plan.Input(0).CopyTo(firstMove);
             return new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
         }
@@ -277,6 +288,20 @@ public sealed class CompiledModel
         DenseKernels.Multiply(targets.StateMap, reference, targetState);
         DenseKernels.Multiply(targets.InputMap, reference, targetInput);
         return targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
+    }
+
+    /// <summary>The warm start's own workspace for this variant, made on first use; null without a warm start.</summary>
+    private static QpWorkspace? WarmWorkspace(PlanWarmStart? warmStart, ConstrainedProblem variant)
+    {
+        if (warmStart is null)
+        {
+            return null;
+        }
+
+        bool withPrevious = ReferenceEquals(variant, warmStart.Model.constrainedWithPrevious) && !ReferenceEquals(variant, warmStart.Model.constrainedWithoutPrevious);
+        return withPrevious
+            ? warmStart.WithPrevious ??= variant.Solver.CreateWorkspace()
+            : warmStart.WithoutPrevious ??= variant.Solver.CreateWorkspace();
     }
 
     /// <summary>Finite but enormous request values can still overflow the prediction; refuse them as a bad request naming the field.</summary>

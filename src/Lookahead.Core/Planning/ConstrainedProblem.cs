@@ -48,12 +48,14 @@ internal sealed class ConstrainedProblem
     /// constrained one on return. <paramref name="linearWeight"/> fixes the soft-limit weight ρ; null lets the
     /// <see cref="SoftLimitPolicy"/> choose and raise it.
     /// </summary>
-    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations)
+    /// <param name="warm">A workspace the caller keeps between solves of this variant: the solve starts from its last
+    /// active set and leaves its own there. Null takes a pooled workspace and starts cold.</param>
+    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations, QpWorkspace? warm = null)
     {
         int nm = decisionVariables;
         int variables = nm + SoftLimits.Count;
         var unreachable = Rows.UnreachableFirstMoves(previousInput);
-        var workspace = pool.TryTake(out var pooled) ? pooled : Solver.CreateWorkspace();
+        var workspace = warm ?? (pool.TryTake(out var pooled) ? pooled : Solver.CreateWorkspace());
         var rhs = ArrayPool<double>.Shared.Rent(Rows.Count);
         var start = ArrayPool<double>.Shared.Rent(variables);
         var x = ArrayPool<double>.Shared.Rent(variables);
@@ -65,7 +67,7 @@ internal sealed class ConstrainedProblem
             // Only the inputs that cannot reach their window lose their first rate limit; the others keep theirs.
             Rows.RightHandSides(x0, previousInput, unreachable, rhsSpan);
             inputs.CopyTo(startSpan);
-            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace);
+            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, warmStart: warm is not null);
             xSpan[..nm].CopyTo(inputs);
 
             // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an
@@ -79,7 +81,10 @@ internal sealed class ConstrainedProblem
             ArrayPool<double>.Shared.Return(rhs);
             ArrayPool<double>.Shared.Return(start);
             ArrayPool<double>.Shared.Return(x);
-            pool.Add(workspace);
+            if (warm is null)
+            {
+                pool.Add(workspace);
+            }
         }
     }
 

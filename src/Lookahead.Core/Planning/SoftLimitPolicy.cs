@@ -62,11 +62,12 @@ internal sealed class SoftLimitPolicy
     /// summary says; otherwise ρ is that weight.
     /// </summary>
     /// <returns>The accepted solve, the iterations of every solve that counted, and the penalty at the solution.</returns>
-    public (QpResult Result, int Iterations, double Penalty) Solve(DualActiveSetSolver solver, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, double? fixedWeight, int maxIterations, QpWorkspace workspace)
+    /// <param name="warmStart">Start the first solve from the workspace's last active set; later solves of the same plan always do.</param>
+    public (QpResult Result, int Iterations, double Penalty) Solve(DualActiveSetSolver solver, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, double? fixedWeight, int maxIterations, QpWorkspace workspace, bool warmStart = false)
     {
         int nm = x.Length - Count;
         double rho = fixedWeight ?? AutomaticLinearWeight;
-        QpResult result = SolveAt(solver, rho, start, rhs, x, maxIterations, workspace);
+        QpResult result = SolveAt(solver, rho, start, rhs, x, maxIterations, workspace, warmStart);
         double penalty = Penalty(x[nm..], rho);
         int iterations = result.Iterations;
         if (fixedWeight is null && result.Status == QpStatus.Optimal)
@@ -74,7 +75,8 @@ internal sealed class SoftLimitPolicy
             for (int raise = 0; raise < MaxRaises && MaxSlack(x[nm..]) > NegligibleSlack; raise++)
             {
                 double before = MaxSlack(x[nm..]);
-                var retry = SolveAt(solver, rho * RaiseFactor, start, rhs, x, maxIterations, workspace);
+                // The same limits at a higher price: the active set just found is the natural start.
+                var retry = SolveAt(solver, rho * RaiseFactor, start, rhs, x, maxIterations, workspace, warmStart: true);
                 iterations += retry.Iterations;
                 if (retry.Status == QpStatus.Optimal && MaxSlack(x[nm..]) < WorthwhileShrink * before)
                 {
@@ -85,7 +87,7 @@ internal sealed class SoftLimitPolicy
                 else
                 {
                     // Not worth it: solve again at the accepted weight so solution and active set agree.
-                    result = SolveAt(solver, rho, start, rhs, x, maxIterations, workspace);
+                    result = SolveAt(solver, rho, start, rhs, x, maxIterations, workspace, warmStart: true);
                     break;
                 }
             }
@@ -130,7 +132,7 @@ internal sealed class SoftLimitPolicy
         return sum;
     }
 
-    private QpResult SolveAt(DualActiveSetSolver solver, double rho, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, int maxIterations, QpWorkspace workspace)
+    private QpResult SolveAt(DualActiveSetSolver solver, double rho, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, int maxIterations, QpWorkspace workspace, bool warmStart)
     {
         int nm = x.Length - Count;
         start[..nm].CopyTo(x);
@@ -140,7 +142,7 @@ internal sealed class SoftLimitPolicy
             x[nm + s] = -rho / (2 * Weights[s]);
         }
 
-        return solver.Solve(default, rhs, x, unconstrained: true, maxIterations, workspace);
+        return solver.Solve(default, rhs, x, unconstrained: true, maxIterations, workspace, warmStart);
     }
 
     private static double MaxSlack(ReadOnlySpan<double> slack)

@@ -20,7 +20,7 @@ public class ConcurrencyTests
             TestModels.RandomVector(random, 6, 2),
             i % 3 == 0 ? TestModels.RandomVector(random, 6, 0.2) : null,
             i % 2 == 0 ? [0.05, -0.05] : null)).ToArray();
-        var sequential = requests.Select(model.Plan).ToArray();
+        var sequential = requests.Select(r => model.Plan(r)).ToArray();
         var parallel = new Plan[requests.Length];
         Parallel.For(0, requests.Length, new ParallelOptions { MaxDegreeOfParallelism = 8 }, i => parallel[i] = model.Plan(requests[i]));
         for (int i = 0; i < requests.Length; i++)

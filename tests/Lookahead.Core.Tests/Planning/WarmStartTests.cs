@@ -1,0 +1,104 @@
+using Lookahead.Core.Models;
+using Lookahead.Core.Planning;
+using Lookahead.Core.Tests.Support;
+using Xunit;
+
+namespace Lookahead.Core.Tests.Planning;
+
+/// <summary>
+/// A warm-started limited plan starts from the previous plan's active set; the program is strictly convex, so it must
+/// end at the same optimum as a cold start, whatever the previous plan was.
+/// </summary>
+public class WarmStartTests
+{
+    /// <summary>The cold-store demo's plant (continuous, 60 s sample time) with all its limits.</summary>
+    private static CompiledModel ColdStore() => ModelCompiler.Compile(new ModelDocument(
+        "cold-store",
+        new PlantSpec(
+            [[-0.000417, 0.000139, 0.0], [0.000139, -0.000556, 0.000139], [0.0, 0.000139, -0.000417]],
+            [[-0.0012, 0.0, 0.0009], [-0.0005, -0.0004, 0.0002], [0.0, -0.0014, 0.0]],
+            null,
+            60,
+            TimeDomain.Continuous),
+        new CostSpec(30, WeightSpec.FromDiagonal([1.0, 1.0, 1.0]), WeightSpec.FromDiagonal([0.05, 0.05, 0.02]), WeightSpec.FromDiagonal([0.5, 0.5, 0.2]), TerminalWeightSpec.Riccati),
+        new LimitsSpec(
+            InputMin: [0.0, 0.0, 0.0],
+            InputMax: [1.0, 1.0, 1.0],
+            InputRateMin: [-0.2, -0.2, -0.5],
+            InputRateMax: [0.2, 0.2, 0.5],
+            OutputMin: [-3.0, -3.0, -3.0],
+            OutputMax: [2.0, 2.0, 2.0],
+            OutputViolationWeight: [100.0, 100.0, 100.0])));
+
+    [Fact]
+    public void WarmPlansAlongAClosedLoopEqualColdPlans()
+    {
+        var model = ColdStore();
+        var warm = model.CreateWarmStart();
+        var random = new Random(5);
+        double[] x = [3.0, 2.5, 2.0];
+        double[] previous = [0.5, 0.5, 0.0];
+        double[]? reference = null;
+        int warmIterations = 0, coldIterations = 0;
+        for (int step = 0; step < 120; step++)
+        {
+            if (step == 60)
+            {
+                reference = [-1.0, 0.0, 0.5];
+            }
+
+            var request = new PlanRequest((double[])x.Clone(), reference, (double[])previous.Clone());
+            var cold = model.Plan(request);
+            var hot = model.Plan(request, warm);
+            AssertSamePlan(cold, hot, $"step {step}");
+            warmIterations += hot.Iterations;
+            coldIterations += cold.Iterations;
+
+            // The plant moves under the first move, with a little noise, as a historian would record it.
+            var next = new double[3];
+            for (int i = 0; i < 3; i++)
+            {
+                next[i] = cold.States[3 + i] + (random.NextDouble() - 0.5) * 0.01;
+            }
+
+            x = next;
+            previous = cold.Input(0).ToArray();
+        }
+
+        Assert.True(warmIterations < coldIterations / 2, $"warm {warmIterations} iterations against cold {coldIterations} along a closed loop");
+    }
+
+    [Fact]
+    public void WarmPlansOfUnrelatedStatesEqualColdPlans()
+    {
+        var model = ColdStore();
+        var warm = model.CreateWarmStart();
+        var random = new Random(17);
+        for (int i = 0; i < 80; i++)
+        {
+            var state = TestModels.RandomVector(random, 3, 4.0);
+            double[]? previous = i % 3 == 0 ? null : Enumerable.Range(0, 3).Select(_ => random.NextDouble() * 1.6 - 0.3).ToArray();
+            double[]? reference = i % 4 == 0 ? TestModels.RandomVector(random, 3, 1.5) : null;
+            var request = new PlanRequest(state, reference, previous);
+            var cold = model.Plan(request);
+            var hot = model.Plan(request, warm);
+            AssertSamePlan(cold, hot, $"state {i}");
+        }
+    }
+
+    [Fact]
+    public void AWarmStartBelongsToItsModel()
+    {
+        var model = ColdStore();
+        var other = ColdStore();
+        Assert.Throws<ArgumentException>(() => other.Plan(new PlanRequest([1.0, 1.0, 1.0]), model.CreateWarmStart()));
+    }
+
+    private static void AssertSamePlan(Plan cold, Plan hot, string what)
+    {
+        Assert.Equal(cold.Status, hot.Status);
+        Assertions.Close(cold.Inputs, hot.Inputs, 1e-9, what);
+        Assert.True(Math.Abs(cold.Cost - hot.Cost) <= 1e-9 * Math.Max(1, Math.Abs(cold.Cost)), $"{what}: cost {cold.Cost:R} cold, {hot.Cost:R} warm");
+        Assert.Equal(cold.Warnings.Select(w => w.Code), hot.Warnings.Select(w => w.Code));
+    }
+}
