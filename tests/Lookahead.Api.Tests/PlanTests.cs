@@ -172,4 +172,37 @@ public class PlanTests
             Assert.All(move, u => Assert.InRange(u, -1e-9, 1 + 1e-9));
         }
     }
+
+    [Fact]
+    public async Task A_configured_iteration_budget_ends_a_hard_plan_early_with_its_code_and_inside_the_hard_limits()
+    {
+        await using var factory = new LookaheadFactory(new Dictionary<string, string?> { ["Planning:MaxSolverIterations"] = "3" });
+        var client = factory.CreateClient();
+        double[] previous = [0.5, 0.5, 0.0];
+
+        // The demo with every zone warm needs far more than three iterations.
+        var plan = await (await client.PostJsonAsync("/v1/aliases/cold-store-demo/plan", """{"state":[3,2.5,2],"previousInput":[0.5,0.5,0]}""")).ReadJsonAsync();
+
+        Assert.Equal("iteration-limit", plan["status"]!.GetValue<string>());
+        Assert.Contains(plan["warnings"]!.AsArray(), w => w!["code"]!.GetValue<string>() == "iteration-limit" && w["count"]!.GetValue<int>() == 3);
+        double[] rateMin = [-0.2, -0.2, -0.5], rateMax = [0.2, 0.2, 0.5];
+        foreach (var move in plan["inputs"]!.Matrix())
+        {
+            for (int i = 0; i < 3; i++)
+            {
+                Assert.InRange(move[i], 0.0, 1.0);
+                Assert.InRange(move[i] - previous[i], rateMin[i] - 1e-12, rateMax[i] + 1e-12);
+            }
+
+            previous = move;
+        }
+    }
+
+    [Fact]
+    public async Task An_iteration_budget_outside_its_range_stops_the_service_from_starting()
+    {
+        await using var factory = new LookaheadFactory(new Dictionary<string, string?> { ["Planning:MaxSolverIterations"] = "0" });
+        var failure = Assert.ThrowsAny<Exception>(() => factory.CreateClient());
+        Assert.Contains("MaxSolverIterations", failure.ToString(), StringComparison.Ordinal);
+    }
 }

@@ -10,6 +10,7 @@ public static class CatalogServices
     public static IServiceCollection AddCatalog(this IServiceCollection services)
     {
         services.AddOptions<CacheOptions>().BindConfiguration(CacheOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<PlanningOptions>().BindConfiguration(PlanningOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<CatalogMetrics>();
         services.AddSingleton<CompiledModelCache>();
         services.AddSingleton<ModelCatalog>();

@@ -22,11 +22,11 @@ public sealed class CompiledModelCache : IDisposable
     private readonly ILogger<CompiledModelCache> logger;
     private readonly long sizeLimit;
 
-    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, CatalogMetrics metrics, ILogger<CompiledModelCache> logger)
+    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, IOptions<PlanningOptions> planning, CatalogMetrics metrics, ILogger<CompiledModelCache> logger)
     {
         sizeLimit = options.Value.SizeLimitBytes;
         cache = new MemoryCache(new MemoryCacheOptions { SizeLimit = sizeLimit, TrackStatistics = true, CompactionPercentage = 0.1 });
-        compileOptions = new CompileOptions { SizeLimits = limits.Value.ToSizeLimits() };
+        compileOptions = new CompileOptions { SizeLimits = limits.Value.ToSizeLimits(), MaxSolverIterations = planning.Value.MaxSolverIterations };
         this.metrics = metrics;
         this.logger = logger;
         metrics.Registry.AddBeforeCollectCallback(() =>

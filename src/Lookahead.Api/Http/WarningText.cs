@@ -46,10 +46,10 @@ public static class WarningText
         WarningCode.FirstMoveRateRelaxed =>
             $"infeasible: input {w.Input} cannot reach its window from the previous input within its rate limit; the plan keeps the input limits and relaxes that input's first rate limit only — do not apply it unchecked",
         WarningCode.IterationLimit =>
-            $"the solver stopped at its iteration cap ({w.Count}); the inputs were projected onto the input limits and are not optimal",
+            $"the solver stopped at its iteration budget ({w.Count}); the inputs are the best point found, moved onto the hard input and rate limits, and are not optimal",
         WarningCode.LimitsContradict => w.Limit is { } kind
-            ? $"infeasible: the hard limits contradict each other (blocked at {WireNames.Limit(kind)}, step {w.Step}, {(w.Output is { } o ? $"output {o}" : $"input {w.Input}")}); the inputs were projected onto the input limits"
-            : "infeasible: the hard limits contradict each other; the inputs were projected onto the input limits",
+            ? $"infeasible: the hard limits contradict each other (blocked at {WireNames.Limit(kind)}, step {w.Step}, {(w.Output is { } o ? $"output {o}" : $"input {w.Input}")}); the inputs were moved onto the hard input and rate limits"
+            : "infeasible: the hard limits contradict each other; the inputs were moved onto the hard input and rate limits",
         WarningCode.SoftOutputLimitExceeded =>
             $"the predicted outputs exceed their soft limits by up to {G(w.Amount)} (output {w.Output}, step {w.Step}): the hard limits leave no plan that respects them",
         WarningCode.StepsNotOptimal =>

@@ -73,6 +73,12 @@ internal sealed class ConstrainedProblem
             // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an
             // input a rounding error outside its window (−1e−17 for a fan whose minimum is 0) is put back on it.
             Rows.ClipToInputLimits(inputs);
+            if (result.Status != QpStatus.Optimal)
+            {
+                // Stopped early or blocked: the best point found, moved onto every hard input and rate limit.
+                Rows.ProjectOntoHardLimits(inputs, previousInput, unreachable);
+            }
+
             var (status, warnings) = Report(result, unreachable, maxIterations);
             return new ConstrainedOutcome(status, iterations, ActiveLimits(workspace, result.ActiveCount), penalty, warnings);
         }

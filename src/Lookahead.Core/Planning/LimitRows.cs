@@ -217,6 +217,34 @@ internal sealed class LimitRows
     }
 
     /// <summary>Puts every u_{k,i} back inside [umin_i, umax_i].</summary>
+    /// <summary>
+    /// Makes a plan that stopped early respect every hard limit: one forward pass puts each u_k inside its input window
+    /// and within its rate limits of u_{k−1} (u_{−1} when given). The first move of an input in
+    /// <paramref name="relaxed"/> keeps only its input window, as in the solve. The pass is exact for these limits:
+    /// the window for u_k only depends on u_{k−1}, which is already inside its own.
+    /// </summary>
+    public void ProjectOntoHardLimits(Span<double> inputs, ReadOnlySpan<double> previousInput, IReadOnlyList<int> relaxed)
+    {
+        for (int k = 0; k < horizon; k++)
+        {
+            for (int i = 0; i < m; i++)
+            {
+                double low = limits.InputMin[i];
+                double high = limits.InputMax[i];
+                bool hasPrevious = k > 0 || (!previousInput.IsEmpty && !relaxed.Contains(i));
+                if (hasPrevious)
+                {
+                    double before = k > 0 ? inputs[((k - 1) * m) + i] : previousInput[i];
+                    low = Math.Max(low, before + limits.InputRateMin[i]);
+                    high = Math.Min(high, before + limits.InputRateMax[i]);
+                }
+
+                ref double v = ref inputs[(k * m) + i];
+                v = low <= high ? Math.Clamp(v, low, high) : Math.Clamp(v, limits.InputMin[i], limits.InputMax[i]);
+            }
+        }
+    }
+
     public void ClipToInputLimits(Span<double> inputs)
     {
         for (int k = 0; k < horizon; k++)

@@ -239,6 +239,27 @@ public class ConstrainedPlanTests
     }
 
     [Fact]
+    public void APlanStoppedByItsBudgetStillRespectsEveryHardInputAndRateLimit()
+    {
+        // Far from the origin with tight rate limits: a one-iteration budget stops long before the optimum.
+        var limits = new LimitsSpec(InputMin: [-1.0], InputMax: [1.0], InputRateMin: [-0.05], InputRateMax: [0.05], OutputMin: [-1.0, -0.5], OutputMax: [1.0, 0.5], OutputViolationWeight: [1.0, 1.0]);
+        var model = ModelCompiler.Compile(
+            TestModels.Discrete([[1.0, 1.0], [0.0, 1.0]], [[0.5], [1.0]], 20, [1.0, 0.1], [0.1], limits: limits),
+            new CompileOptions { MaxSolverIterations = 1 });
+        double previous = 0.3;
+        var plan = model.Plan(new PlanRequest([5.0, -1.0], PreviousInput: [previous]));
+
+        Assert.Equal(PlanStatus.IterationLimit, plan.Status);
+        Assert.Contains(plan.Warnings, w => w.Code == WarningCode.IterationLimit && w.Count == 1);
+        foreach (double u in plan.Inputs)
+        {
+            Assert.InRange(u, -1.0, 1.0);
+            Assert.InRange(u - previous, -0.05 - 1e-15, 0.05 + 1e-15);
+            previous = u;
+        }
+    }
+
+    [Fact]
     public void TargetRespectsInputLimitsAndSaysTheSetpointIsUnreachable()
     {
         // First-order lag x⁺ = 0.9x + 0.1u: holding y = 5 needs u = 5, above the limit 2.
