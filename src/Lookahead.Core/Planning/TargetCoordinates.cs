@@ -70,10 +70,7 @@ internal sealed class TargetCoordinates
         int p = c.RowCount;
         var build = Matrix<double>.Build;
 
-        var equilibrium = build.Dense(n, n + m);
-        equilibrium.SetSubMatrix(0, 0, a - build.DenseIdentity(n));
-        equilibrium.SetSubMatrix(0, n, b);
-        var nullM = TargetMap.NullSpace(equilibrium, equilibrium.FrobeniusNorm());
+        var nullM = TargetMap.EquilibriumBasis(a, b);
         int k = nullM.ColumnCount;
         if (k == 0)
         {

@@ -24,6 +24,17 @@ internal sealed class TargetMap
     /// <summary>m×p row-major: u_s = InputMap·r.</summary>
     public double[] InputMap { get; }
 
+    /// <summary>An orthonormal basis N_M of the equilibria z = [x; u] with x = A x + B u: the null space of [A − I, B].</summary>
+    internal static Matrix<double> EquilibriumBasis(Matrix<double> a, Matrix<double> b)
+    {
+        int n = a.RowCount;
+        var build = Matrix<double>.Build;
+        var equilibrium = build.Dense(n, n + b.ColumnCount);
+        equilibrium.SetSubMatrix(0, 0, a - build.DenseIdentity(n));
+        equilibrium.SetSubMatrix(0, n, b);
+        return NullSpace(equilibrium, equilibrium.FrobeniusNorm());
+    }
+
     public static TargetMap Build(Matrix<double> a, Matrix<double> b, Matrix<double> c, Matrix<double> q)
     {
         int n = a.RowCount;
@@ -31,11 +42,7 @@ internal sealed class TargetMap
         int p = c.RowCount;
         var build = Matrix<double>.Build;
 
-        // Equilibria z = [x; u] = N_M w with N_M spanning the null space of [A − I, B].
-        var equilibrium = build.Dense(n, n + m);
-        equilibrium.SetSubMatrix(0, 0, a - build.DenseIdentity(n));
-        equilibrium.SetSubMatrix(0, n, b);
-        var nullM = NullSpace(equilibrium, equilibrium.FrobeniusNorm());
+        var nullM = EquilibriumBasis(a, b);
         if (nullM.ColumnCount == 0)
         {
             return new TargetMap(new double[n * p], new double[m * p]);
