@@ -10,15 +10,38 @@ namespace Lookahead.Core.Numerics;
 /// </summary>
 public static class DiscreteRiccati
 {
+    /// <summary>
+    /// Bound on doubling steps. Step k covers 2^k stages of the Riccati recursion, so 100 steps are far more
+    /// than any solution that exists needs; not settling by then means a mode on or near the unit circle.
+    /// </summary>
     public const int MaxIterations = 100;
 
     /// <summary>Residual above which a computed solution is refused.</summary>
     public const double AcceptableResidual = 1e-8;
 
+    /// <summary>Converged when one step changes H_k by at most this fraction of its norm: a few units of rounding.</summary>
+    public const double ConvergenceTolerance = 1e-15;
+
+    /// <summary>Converged when ‖A_k‖_F falls below this: A_kᵀ·H·A_k can no longer change H_k in double precision.</summary>
+    public const double NegligibleTransition = 1e-300;
+
     /// <summary>Returns the stabilising solution for A (n×n), B (n×m), Q ⪰ 0 (n×n), R ≻ 0 (m×m).</summary>
-    /// <exception cref="RiccatiException">(A, B) is not stabilisable, or no stabilising solution exists.</exception>
+    /// <exception cref="ArgumentException">An input has a non-finite entry.</exception>
+    /// <exception cref="RiccatiException">
+    /// (A, B) is not stabilisable, no stabilising solution exists, or the iteration overflows the double range
+    /// (the scales of the data are too far apart for the solution to be represented).
+    /// </exception>
+    /// <exception cref="NumericScaleException">An eigenvalue or singular value iteration did not converge.</exception>
     public static RiccatiSolution Solve(Matrix<double> a, Matrix<double> b, Matrix<double> q, Matrix<double> r)
     {
+        foreach (var (m, name) in new[] { (a, nameof(a)), (b, nameof(b)), (q, nameof(q)), (r, nameof(r)) })
+        {
+            if (!MatrixScale.AllFinite(m))
+            {
+                throw new ArgumentException("the matrix must be finite", name);
+            }
+        }
+
         int n = a.RowCount;
         var stabilisability = SystemProperties.Stabilisable(a, b);
         if (!stabilisability.Holds)
@@ -28,8 +51,13 @@ public static class DiscreteRiccati
 
         var identity = Matrix<double>.Build.DenseIdentity(n);
         var ak = a.Clone();
-        var gk = b * r.Cholesky().Solve(b.Transpose());
+        var gk = b * Factor(r, "R").Solve(b.Transpose());
         var hk = q.Clone();
+        if (!MatrixScale.AllFinite(gk))
+        {
+            throw Overflow(0);
+        }
+
         int iterations = 0;
         bool converged = false;
         for (; iterations < MaxIterations && !converged; iterations++)
@@ -43,33 +71,66 @@ public static class DiscreteRiccati
             ak = ak * wInvA;
             hNext = Symmetrise(hNext);
             gk = Symmetrise(gNext);
-            double change = (hNext - hk).FrobeniusNorm();
-            double size = hNext.FrobeniusNorm();
-            hk = hNext;
-            if (!double.IsFinite(size))
+
+            // Stop at the first non-finite entry: later steps would only carry NaN forward.
+            if (!MatrixScale.AllFinite(hNext) || !MatrixScale.AllFinite(gk) || !MatrixScale.AllFinite(ak))
             {
-                break;
+                throw Overflow(iterations + 1);
             }
 
-            converged = change <= 1e-15 * Math.Max(size, double.Epsilon) || ak.FrobeniusNorm() <= 1e-300;
+            // Norms of the power-of-two-scaled iterate: finite entries near the top of the range must not overflow the test.
+            int exponent = MatrixScale.Exponent(MatrixScale.MaxAbs(hNext));
+            double change = MatrixScale.ScaleDown(hNext - hk, exponent).FrobeniusNorm();
+            double size = MatrixScale.ScaleDown(hNext, exponent).FrobeniusNorm();
+            hk = hNext;
+            converged = change <= ConvergenceTolerance * Math.Max(size, double.Epsilon) || ak.FrobeniusNorm() <= NegligibleTransition;
         }
 
-        if (!converged || hk.Enumerate().Any(v => !double.IsFinite(v)))
+        if (!converged)
         {
             throw new RiccatiException($"the Riccati doubling iteration did not converge in {MaxIterations} steps: a mode on the unit circle is probably unobservable through the output weight, so no stabilising solution exists");
         }
 
         var p = hk;
-        var gain = GainFor(a, b, r, p);
+        Matrix<double> gain;
+        try
+        {
+            gain = GainFor(a, b, r, p);
+        }
+        catch (ArgumentException ex)
+        {
+            throw new RiccatiException("R + BᵀPB is not numerically positive definite, so the feedback gain does not exist in double precision", ex);
+        }
+
         double residual = RelativeResidual(a, b, q, r, p);
+        if (!MatrixScale.AllFinite(gain) || !double.IsFinite(residual))
+        {
+            throw new RiccatiException("the feedback gain or the residual of the Riccati solution overflows the double range: the scales of Q, R and B are too far apart for a usable solution");
+        }
+
         double radius = SystemProperties.SpectralRadius(a - b * gain);
-        if (!(radius < 1.0 - SystemProperties.UnitCircleMargin) || residual > AcceptableResidual)
+        if (!(radius < 1.0 - SystemProperties.UnitCircleMargin) || !(residual <= AcceptableResidual))
         {
             throw new RiccatiException($"no stabilising Riccati solution: closed-loop spectral radius {radius:g6}, relative residual {residual:g3}");
         }
 
         return new RiccatiSolution(p, gain, residual, radius, iterations);
     }
+
+    private static MathNet.Numerics.LinearAlgebra.Factorization.Cholesky<double> Factor(Matrix<double> m, string name)
+    {
+        try
+        {
+            return m.Cholesky();
+        }
+        catch (ArgumentException ex)
+        {
+            throw new RiccatiException($"{name} is not numerically positive definite", ex);
+        }
+    }
+
+    private static RiccatiException Overflow(int step) => new(
+        $"the doubling iteration overflowed the double range at step {step}: the scales of Q, R and B are too far apart for the solution to be represented");
 
     /// <summary>K = (R + BᵀPB)⁻¹BᵀPA.</summary>
     public static Matrix<double> GainFor(Matrix<double> a, Matrix<double> b, Matrix<double> r, Matrix<double> p)

@@ -21,8 +21,21 @@ public static class MatrixExponential
 
     private const double Theta13 = 5.371920351148152e0;
 
-    /// <summary>Returns e^M for a square, finite M.</summary>
-    /// <exception cref="ArgumentException">M is not square or has a non-finite entry.</exception>
+    /// <summary>
+    /// Bound on the number of squarings. ‖M‖₁ up to θ13·2⁶⁴ ≈ 1e20 covers any plant sampled in consistent
+    /// units; beyond it e^M overflows or its fast modes decay below rounding many times over, and a norm of
+    /// 1e308 would otherwise cost about a thousand matrix products.
+    /// </summary>
+    public const int MaxSquarings = 64;
+
+    /// <summary>The largest ‖M‖₁ accepted: θ13·2^<see cref="MaxSquarings"/>.</summary>
+    public const double MaxNorm = Theta13 * 18446744073709551616.0;
+
+    /// <summary>Returns e^M for a square, finite M with ‖M‖₁ ≤ <see cref="MaxNorm"/>.</summary>
+    /// <exception cref="ArgumentException">
+    /// M is not square, has a non-finite entry, needs more than <see cref="MaxSquarings"/> squarings, or e^M
+    /// overflows the double range (checked after every squaring, so an overflow ends the work at once).
+    /// </exception>
     public static Matrix<double> Compute(Matrix<double> m)
     {
         if (m.RowCount != m.ColumnCount)
@@ -30,12 +43,17 @@ public static class MatrixExponential
             throw new ArgumentException("the matrix must be square", nameof(m));
         }
 
-        if (m.Enumerate().Any(v => !double.IsFinite(v)))
+        if (!MatrixScale.AllFinite(m))
         {
             throw new ArgumentException("the matrix must be finite", nameof(m));
         }
 
         double norm = m.L1Norm();
+        if (!(norm <= MaxNorm))
+        {
+            throw new ArgumentException($"‖M‖₁ = {norm:g3} would need more than {MaxSquarings} squarings (at most {MaxNorm:g3} is supported)");
+        }
+
         foreach (var (degree, theta) in Thresholds)
         {
             if (norm <= theta)
@@ -51,6 +69,10 @@ public static class MatrixExponential
         for (int i = 0; i < s; i++)
         {
             result = result * result;
+            if (!MatrixScale.AllFinite(result))
+            {
+                throw new ArgumentException($"e^M overflows the double range (after {i + 1} of {s} squarings)");
+            }
         }
 
         return result;

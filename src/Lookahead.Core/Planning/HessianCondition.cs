@@ -1,4 +1,5 @@
 using Lookahead.Core.Numerics;
+using MathNet.Numerics;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Planning;
@@ -9,11 +10,40 @@ internal static class HessianCondition
     /// <summary>Up to this size the eigenvalues are computed exactly; above it, by power iteration.</summary>
     public const int ExactUpTo = 600;
 
+    /// <summary>
+    /// Bound on power-iteration steps. The estimate only decides a warning and whether plans are refined, so a
+    /// few correct digits suffice; when 200 steps are not enough the leading eigenvalues nearly coincide, and
+    /// the Rayleigh quotient reached is already close to both.
+    /// </summary>
+    public const int MaxPowerIterations = 200;
+
+    /// <summary>Relative change of the Rayleigh quotient at which the power iteration stops: about six digits.</summary>
+    public const double PowerTolerance = 1e-6;
+
+    /// <exception cref="NumericScaleException">
+    /// The matrix has a non-finite entry, the eigenvalue iteration did not converge, or the estimate overflows.
+    /// </exception>
     public static double Compute(Matrix<double> hessian, CholeskyFactor factor)
     {
+        if (!MatrixScale.AllFinite(hessian))
+        {
+            throw new NumericScaleException("the condensed Hessian has a non-finite entry");
+        }
+
         if (hessian.RowCount <= ExactUpTo)
         {
-            var values = hessian.Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
+            // The ratio is scale-free; a power-of-two scaling keeps the eigenvalue iteration's norms in range.
+            var scaled = MatrixScale.ScaleDown(hessian, MatrixScale.Exponent(MatrixScale.MaxAbs(hessian)));
+            double[] values;
+            try
+            {
+                values = scaled.Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
+            }
+            catch (NonConvergenceException ex)
+            {
+                throw new NumericScaleException("the eigenvalue iteration for the Hessian's condition number did not converge", ex);
+            }
+
             double min = values.Min();
             return min > 0 ? values.Max() / min : double.PositiveInfinity;
         }
@@ -28,7 +58,13 @@ internal static class HessianCondition
                 return Vector<double>.Build.DenseOfArray(copy);
             },
             hessian.RowCount);
-        return largest * inverseLargest;
+        double condition = largest * inverseLargest;
+        if (!double.IsFinite(condition))
+        {
+            throw new NumericScaleException("the estimate of the Hessian's condition number overflows the double range");
+        }
+
+        return condition;
     }
 
     private static double PowerIteration(Func<Vector<double>, Vector<double>> apply, int size)
@@ -36,18 +72,23 @@ internal static class HessianCondition
         var v = Vector<double>.Build.Dense(size, i => 1.0 + (0.01 * (i % 7)));
         v /= v.L2Norm();
         double estimate = 0;
-        for (int k = 0; k < 200; k++)
+        for (int k = 0; k < MaxPowerIterations; k++)
         {
             var w = apply(v);
             double next = v.DotProduct(w);
             double norm = w.L2Norm();
+            if (!double.IsFinite(norm) || !double.IsFinite(next))
+            {
+                throw new NumericScaleException("the power iteration for the Hessian's condition number overflowed the double range");
+            }
+
             if (norm == 0)
             {
                 return 0;
             }
 
             v = w / norm;
-            if (Math.Abs(next - estimate) <= 1e-6 * Math.Abs(next))
+            if (Math.Abs(next - estimate) <= PowerTolerance * Math.Abs(next))
             {
                 return next;
             }

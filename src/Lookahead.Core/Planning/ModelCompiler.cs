@@ -1,6 +1,7 @@
 using Lookahead.Core.Models;
 using Lookahead.Core.Numerics;
 using Lookahead.Core.Validation;
+using MathNet.Numerics;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Planning;
@@ -8,6 +9,11 @@ namespace Lookahead.Core.Planning;
 /// <summary>Validates, discretises, condenses and factorises a model once, producing an immutable <see cref="CompiledModel"/>.</summary>
 public static class ModelCompiler
 {
+    /// <summary>Why the condensed Hessian cannot be factored: told at cost.inputWeight, the weight that keeps it definite.</summary>
+    private const string HessianTooSingular =
+        "is too small next to the rest of the cost: the condensed Hessian is not numerically positive definite " +
+        "(some input directions move the outputs too little to be told apart), so the plan is not unique in double precision — raise the input weight";
+
     /// <summary>Compiles <paramref name="document"/>.</summary>
     /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
     public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null)
@@ -19,14 +25,7 @@ public static class ModelCompiler
         var b = model.B;
         if (model.TimeDomain == TimeDomain.Continuous)
         {
-            try
-            {
-                (a, b) = ZeroOrderHold.Discretise(a, b, model.SampleTime);
-            }
-            catch (ArgumentException ex)
-            {
-                throw new ModelValidationException("plant", $"cannot be discretised at this sample time: {ex.Message}");
-            }
+            (a, b) = Discretise(model);
         }
 
         var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);
@@ -42,7 +41,7 @@ public static class ModelCompiler
                 {
                     riccati = DiscreteRiccati.Solve(a, b, qx, model.InputWeight);
                 }
-                catch (RiccatiException ex)
+                catch (Exception ex) when (ex is RiccatiException or NumericScaleException or NonConvergenceException)
                 {
                     throw new ModelValidationException("cost.terminalWeight", $"'riccati' is not available for this plant: {ex.Message}. Use 'stage' or an explicit matrix");
                 }
@@ -60,7 +59,7 @@ public static class ModelCompiler
         bool hasRateWeight = model.InputRateWeight.Enumerate().Any(v => v != 0);
         var withoutPrevious = BuildGains(model, a, b, terminal, withPreviousInput: false);
         var withPrevious = hasRateWeight ? BuildGains(model, a, b, terminal, withPreviousInput: true) : withoutPrevious;
-        var targets = TargetMap.Build(a, b, model.C, model.OutputWeight);
+        var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight));
         ConstrainedProblem? constrainedWithout = null;
         ConstrainedProblem? constrainedWith = null;
         TargetSolver? targetSolver = null;
@@ -76,19 +75,20 @@ public static class ModelCompiler
             constrainedWith = ReferenceEquals(withPrevious, withoutPrevious) ? constrainedWithout : new ConstrainedProblem(model, a, b, withPrevious);
             if (model.Limits.HasInputBounds)
             {
-                targetSolver = new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits);
+                targetSolver = Guarded("cost.outputWeight", "the limited steady-state targets could not be prepared", () => new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits));
             }
         }
 
         // Diagnostics: what an engineer should read before closing the loop.
-        int rank = SystemProperties.ControllabilityRank(a, b);
-        var stabilisable = SystemProperties.Stabilisable(a, b);
-        var detectable = SystemProperties.Detectable(a, qx);
-        double openLoopRadius = SystemProperties.SpectralRadius(a);
+        // Each step names the field its data came from, should its scale defeat it.
+        int rank = Guarded("plant.b", "the controllability rank could not be computed", () => SystemProperties.ControllabilityRank(a, b));
+        var stabilisable = Guarded("plant.b", "stabilisability could not be tested", () => SystemProperties.Stabilisable(a, b));
+        var detectable = Guarded("cost.outputWeight", "detectability through the output weight could not be tested", () => SystemProperties.Detectable(a, qx));
+        double openLoopRadius = Guarded("plant.a", "the eigenvalues of A could not be computed", () => SystemProperties.SpectralRadius(a));
         var gainRows = Matrix<double>.Build.Dense(model.InputCount, n, (i, j) => withoutPrevious.Kx[(j * model.Horizon * model.InputCount) + i]);
-        var closedLoop = SystemProperties.Eigenvalues(a - (b * gainRows));
+        var closedLoop = Guarded("cost.horizon", "the closed-loop eigenvalues could not be computed", () => SystemProperties.Eigenvalues(a - (b * gainRows)));
         double closedLoopRadius = closedLoop.Select(z => z.Magnitude).DefaultIfEmpty(0).Max();
-        double condition = HessianCondition.Compute(withoutPrevious.Hessian, withoutPrevious.Factor);
+        double condition = Guarded("cost.inputWeight", "the condition number of the condensed Hessian could not be computed", () => HessianCondition.Compute(withoutPrevious.Hessian, withoutPrevious.Factor));
 
         if (closedLoopRadius >= 1)
         {
@@ -119,17 +119,85 @@ public static class ModelCompiler
         return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, targets, targetSolver, diagnostics, gain, options);
     }
 
+    /// <summary>Discretises a continuous plant, naming the field when the hold is out of range.</summary>
+    private static (Matrix<double> A, Matrix<double> B) Discretise(ValidatedModel model)
+    {
+        Matrix<double> ad, bd;
+        try
+        {
+            (ad, bd) = ZeroOrderHold.Discretise(model.A, model.B, model.SampleTime);
+        }
+        catch (ArgumentException ex)
+        {
+            string field = ex.ParamName switch
+            {
+                "a" => "plant.a",
+                "b" => "plant.b",
+                _ => "plant.sampleTime",
+            };
+            throw new ModelValidationException(field, $"cannot be discretised at this sample time: {ReasonOf(ex)}");
+        }
+
+        // The held plant must respect the same entry bound as a discrete one: a long hold of a growing plant,
+        // or of integrators (B_d ≈ T·B), can push it past what the later products can carry.
+        foreach (var (held, name) in new[] { (ad, "A_d"), (bd, "B_d") })
+        {
+            double largest = held.Enumerate().Select(Math.Abs).DefaultIfEmpty(0).Max();
+            if (largest > ModelValidator.MaxMagnitude)
+            {
+                throw new ModelValidationException("plant.sampleTime", $"is {model.SampleTime:g3} s; held over it the plant's {name} has entries up to {largest:g3}, beyond {ModelValidator.MaxMagnitude:g3} — shorten the sample time or check the units of A and B");
+            }
+        }
+
+        return (ad, bd);
+    }
+
+    /// <summary>The exception's message without the "(Parameter 'x')" suffix that names the argument.</summary>
+    private static string ReasonOf(ArgumentException ex)
+    {
+        string suffix = $" (Parameter '{ex.ParamName}')";
+        return ex.ParamName is not null && ex.Message.EndsWith(suffix, StringComparison.Ordinal) ? ex.Message[..^suffix.Length] : ex.Message;
+    }
+
+    /// <summary>Runs a numeric step; when the data's scale defeats it, the request is refused naming <paramref name="field"/>.</summary>
+    private static T Guarded<T>(string field, string step, Func<T> compute)
+    {
+        try
+        {
+            return compute();
+        }
+        catch (Exception ex) when (ex is NumericScaleException or NonConvergenceException)
+        {
+            throw new ModelValidationException(field, $"{step}: {ex.Message}");
+        }
+    }
+
     private static GainSet BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, bool withPreviousInput)
     {
         var condensed = Condensing.Build(a, b, model.C, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal, model.Horizon, withPreviousInput);
-        if (!DenseMatrix.AllFinite(condensed.Hessian) || !DenseMatrix.AllFinite(condensed.Fx))
+        var maps = condensed.Fx.Append(condensed.Fr).Append(condensed.Fxs).Append(condensed.Fus).Append(condensed.Fup);
+        if (!DenseMatrix.AllFinite(condensed.Hessian) || !DenseMatrix.AllFinite(maps) || !DenseMatrix.AllFinite(condensed.FreeCost))
         {
             throw new ModelValidationException("cost.horizon", "the predictions overflow over this horizon: the plant grows too fast for condensing; shorten the horizon or pre-stabilise the plant");
         }
 
-        var cholesky = condensed.Hessian.Cholesky();
-        var maps = condensed.Fx.Append(condensed.Fr).Append(condensed.Fxs).Append(condensed.Fus).Append(condensed.Fup);
+        // R ≻ 0 is judged relative to R alone; next to the rest of the cost it can still be too small to keep
+        // the condensed Hessian definite in double precision (inputs the plant cannot tell apart, say).
+        MathNet.Numerics.LinearAlgebra.Factorization.Cholesky<double> cholesky;
+        try
+        {
+            cholesky = condensed.Hessian.Cholesky();
+        }
+        catch (ArgumentException)
+        {
+            throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
+        }
+
         var gains = cholesky.Solve(maps);
+        if (!DenseMatrix.AllFinite(gains))
+        {
+            throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
+        }
         int n = a.RowCount;
         int m = b.ColumnCount;
         int p = model.C.RowCount;

@@ -1,4 +1,6 @@
 using Lookahead.Core.Models;
+using Lookahead.Core.Numerics;
+using MathNet.Numerics;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Validation;
@@ -9,11 +11,29 @@ namespace Lookahead.Core.Validation;
 /// </summary>
 public static class ModelValidator
 {
-    /// <summary>Relative tolerance for symmetry: |W_ij − W_ji| ≤ tol·max(1, max|W|).</summary>
+    /// <summary>Relative tolerance for symmetry: |W_ij − W_ji| ≤ tol·max|W|, against the weight's own scale.</summary>
     public const double SymmetryTolerance = 1e-9;
 
-    /// <summary>Relative tolerance for semidefiniteness: λ_min ≥ −tol·max(1, max|λ|).</summary>
+    /// <summary>
+    /// Relative tolerance for definiteness, against the weight's own largest eigenvalue in magnitude λ*:
+    /// semidefinite when λ_min ≥ −tol·λ*, definite when λ_min &gt; tol·λ*. Computed eigenvalues carry errors of
+    /// about n·2.2e-16·λ* (≤ 4.4e-14·λ* for n ≤ 200); 1e-10 leaves room for data rounded when it was written.
+    /// </summary>
     public const double DefinitenessTolerance = 1e-10;
+
+    /// <summary>
+    /// Largest magnitude accepted for an entry of A, B, C and the weights. Compiling multiplies up to five such
+    /// numbers before any power of A (BᵀCᵀQCB in the Hessian) and sums up to 200⁴ of those products:
+    /// (1e50)⁵ · 1.6e9 ≈ 2e259 stays below double's 1.8e308 with room left for the horizon's growth.
+    /// </summary>
+    public const double MaxMagnitude = 1e50;
+
+    /// <summary>
+    /// Smallest ‖A‖₁·T accepted for a continuous plant with A ≠ 0: below double's machine epsilon 2⁻⁵² ≈ 2.2e-16,
+    /// e^{AT} differs from the identity by less than the rounding of its unit diagonal, so the plant's own
+    /// dynamics would vanish from the discretised model.
+    /// </summary>
+    public const double MinHoldNorm = 2.220446049250313e-16;
 
     /// <summary>Returns every problem found; an empty list means the document is acceptable.</summary>
     public static IReadOnlyList<ValidationError> Validate(ModelDocument document, SizeLimits? limits = null)
@@ -170,6 +190,11 @@ public static class ModelValidator
             return null;
         }
 
+        if (plant.TimeDomain == TimeDomain.Continuous)
+        {
+            CheckHoldRange(a, plant.SampleTime, errors);
+        }
+
         CheckDefinite(q, "cost.outputWeight", strict: false, errors);
         CheckDefinite(r, "cost.inputWeight", strict: true, errors);
         CheckDefinite(s, "cost.inputRateWeight", strict: false, errors);
@@ -274,6 +299,7 @@ public static class ModelValidator
     private static Matrix<double> ToMatrix(double[][] rows, string path, List<ValidationError> errors)
     {
         var matrix = Matrix<double>.Build.Dense(rows.Length, rows[0].Length);
+        var largest = (Value: 0.0, Path: "");
         for (int i = 0; i < rows.Length; i++)
         {
             for (int j = 0; j < rows[i].Length; j++)
@@ -283,12 +309,26 @@ public static class ModelValidator
                 {
                     errors.Add(new($"{path}[{i}][{j}]", "must be a finite number"));
                 }
+                else if (Math.Abs(v) > Math.Abs(largest.Value))
+                {
+                    largest = (v, $"{path}[{i}][{j}]");
+                }
 
                 matrix[i, j] = v;
             }
         }
 
+        CheckMagnitude(largest.Value, largest.Path, errors);
         return matrix;
+    }
+
+    /// <summary>One error per field, at its largest entry, when that entry is beyond <see cref="MaxMagnitude"/>.</summary>
+    private static void CheckMagnitude(double largest, string path, List<ValidationError> errors)
+    {
+        if (Math.Abs(largest) > MaxMagnitude)
+        {
+            errors.Add(new(path, $"is {largest:g3}; entries larger than {MaxMagnitude:g3} in magnitude make the products formed while compiling (such as BᵀCᵀQCB) overflow double precision — express the model in units that keep its numbers nearer 1"));
+        }
     }
 
     private static Matrix<double> ToWeight(WeightSpec weight, string path, List<ValidationError> errors)
@@ -296,19 +336,25 @@ public static class ModelValidator
         if (weight.Diagonal is not null)
         {
             var d = weight.Diagonal;
+            var largest = (Value: 0.0, Path: "");
             for (int i = 0; i < d.Length; i++)
             {
                 if (!double.IsFinite(d[i]))
                 {
                     errors.Add(new($"{path}[{i}]", "must be a finite number"));
                 }
+                else if (Math.Abs(d[i]) > Math.Abs(largest.Value))
+                {
+                    largest = (d[i], $"{path}[{i}]");
+                }
             }
 
+            CheckMagnitude(largest.Value, largest.Path, errors);
             return Matrix<double>.Build.DenseOfDiagonalArray(d);
         }
 
         var matrix = ToMatrix(weight.Matrix!, path, errors);
-        double scale = Math.Max(1.0, matrix.Enumerate().Select(Math.Abs).DefaultIfEmpty(0).Max());
+        double scale = matrix.Enumerate().Where(double.IsFinite).Select(Math.Abs).DefaultIfEmpty(0).Max();
         for (int i = 0; i < matrix.RowCount; i++)
         {
             for (int j = i + 1; j < matrix.ColumnCount; j++)
@@ -325,18 +371,65 @@ public static class ModelValidator
         return (matrix + matrix.Transpose()) * 0.5;
     }
 
+    /// <summary>
+    /// Definiteness judged relative to the weight's own scale, so its units do not decide it. The eigenvalues are
+    /// computed on the weight divided by a power of two (exact), which keeps the iteration's norms in range.
+    /// </summary>
     private static void CheckDefinite(Matrix<double> weight, string path, bool strict, List<ValidationError> errors)
     {
-        var eigenvalues = weight.Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
-        double largest = Math.Max(1.0, eigenvalues.Select(Math.Abs).Max());
-        double smallest = eigenvalues.Min();
-        if (strict && smallest <= DefinitenessTolerance * largest)
+        double scale = MatrixScale.MaxAbs(weight);
+        if (scale == 0)
         {
-            errors.Add(new(path, $"must be positive definite (smallest eigenvalue {smallest:g6})"));
+            if (strict)
+            {
+                errors.Add(new(path, "must be positive definite: it is all zeros"));
+            }
+
+            return;
         }
-        else if (!strict && smallest < -DefinitenessTolerance * largest)
+
+        int exponent = MatrixScale.Exponent(scale);
+        double[] eigenvalues;
+        try
         {
-            errors.Add(new(path, $"must be positive semidefinite (smallest eigenvalue {smallest:g6})"));
+            eigenvalues = MatrixScale.ScaleDown(weight, exponent).Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
+        }
+        catch (NonConvergenceException)
+        {
+            errors.Add(new(path, "its eigenvalues could not be computed (the iteration did not converge), so its definiteness cannot be judged"));
+            return;
+        }
+
+        double largestUnit = eigenvalues.Select(Math.Abs).Max();
+        double smallestUnit = eigenvalues.Min();
+        double largest = Math.ScaleB(largestUnit, exponent);
+        double smallest = Math.ScaleB(smallestUnit, exponent);
+        if (strict && !(smallestUnit > DefinitenessTolerance * largestUnit))
+        {
+            errors.Add(new(path, $"must be positive definite: its smallest eigenvalue {smallest:g3} is not above {DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (definiteness is judged relative to its largest eigenvalue, so the weight's units do not matter)"));
+        }
+        else if (!strict && smallestUnit < -DefinitenessTolerance * largestUnit)
+        {
+            errors.Add(new(path, $"must be positive semidefinite: its smallest eigenvalue {smallest:g3} is below −{DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (semidefiniteness is judged relative to its largest eigenvalue, so the weight's units do not matter)"));
+        }
+    }
+
+    /// <summary>
+    /// A continuous plant is held by e^{AT}: ‖A‖₁·T must lie where the matrix exponential can represent it.
+    /// The sample time is named: with A's entries within <see cref="MaxMagnitude"/>, it is the factor that
+    /// does not fit this plant (or the units of the two disagree).
+    /// </summary>
+    private static void CheckHoldRange(Matrix<double> a, double sampleTime, List<ValidationError> errors)
+    {
+        double norm = a.L1Norm();
+        double product = norm * sampleTime;
+        if (product > MatrixExponential.MaxNorm)
+        {
+            errors.Add(new("plant.sampleTime", $"is {sampleTime:g3} s; times the plant's ‖A‖₁ = {norm:g3} that is {product:g3}, beyond the {MatrixExponential.MaxNorm:g3} a zero-order hold can represent (e^{{AT}} over- or underflows) — shorten the sample time or check the units of A"));
+        }
+        else if (product > 0 && product < MinHoldNorm)
+        {
+            errors.Add(new("plant.sampleTime", $"is {sampleTime:g3} s; times the plant's ‖A‖₁ = {norm:g3} that is {product:g3}, below double's machine epsilon {MinHoldNorm:g3}: e^{{AT}} would not differ from the identity and the plant's dynamics would be lost — lengthen the sample time or check the units of A"));
         }
     }
 
@@ -381,6 +474,10 @@ public static class ModelValidator
                     if (!double.IsFinite(given[j]) || given[j] < 0 || (limited && given[j] == 0))
                     {
                         errors.Add(new($"limits.outputViolationWeight[{j}]", limited ? "must be a finite number greater than 0 for an output with limits" : "must be a finite number ≥ 0"));
+                    }
+                    else if (given[j] > MaxMagnitude)
+                    {
+                        errors.Add(new($"limits.outputViolationWeight[{j}]", $"is {given[j]:g3}; weights above {MaxMagnitude:g3} overflow the penalty terms in double precision — express the model in units that keep its numbers nearer 1"));
                     }
 
                     weight[j] = given[j];
