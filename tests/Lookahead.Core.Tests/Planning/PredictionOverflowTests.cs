@@ -63,10 +63,11 @@ public class PredictionOverflowTests
     [InlineData(true)]
     public void ModestRequestOnAPlantThatOverflowsNamesThePlant(bool firstMoveOnly)
     {
-        // A mode growing ×1e10 per step that no input moves: the Hessian and gains stay finite (the input never
-        // touches that mode), yet from x_0 = [1, 0] its terminal cost 1e10^32 passes 1e308 within the horizon of 16.
-        var model = ModelCompiler.Compile(TestModels.Discrete([[1e10, 0.0], [0.0, 0.5]], [[0.0], [1.0]], 16, [1.0, 1.0], [1.0], TerminalWeightSpec.Stage));
-        var request = new PlanRequest([1.0, 0.0], [0.0, 0.5], [0.1]);
+        // A mode growing ×1e9 per step that no input moves: compiling stays finite (its weight reaches 1e288 over the
+        // horizon of 16), yet from x_0 = [1e12, 0] the cost passes 1e308 — a size the plant, not the value, makes
+        // too large (a unit state already costs 1e288).
+        var model = ModelCompiler.Compile(TestModels.Discrete([[1e9, 0.0], [0.0, 0.5]], [[0.0], [1.0]], 16, [1.0, 1.0], [1.0], TerminalWeightSpec.Stage));
+        var request = new PlanRequest([1e12, 0.0], [0.0, 0.5], [0.1]);
         var move = new double[model.InputCount];
         Assert.Equal("plant", RefusedField(() =>
         {

@@ -132,7 +132,7 @@ public class UnconstrainedPlanTests
     {
         var document = new ModelDocument("big", new PlantSpec([[1e200]], [[1.0]], null, 1.0, TimeDomain.Continuous), new CostSpec(3, WeightSpec.FromDiagonal([1.0]), WeightSpec.FromDiagonal([1.0]), null, TerminalWeightSpec.Stage));
         var ex = Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => ModelCompiler.Compile(document));
-        Assert.Equal("plant", Assert.Single(ex.Errors).Path);
+        Assert.Equal("plant.a[0][0]", Assert.Single(ex.Errors).Path);
         var model = ModelCompiler.Compile(TestModels.Discrete([[0.5]], [[1.0]], 3, [1.0], [1.0]));
         var simulation = Assert.Throws<Lookahead.Core.Validation.ModelValidationException>(() => ClosedLoopSimulator.Simulate(model, new SimulationRequest([1.0], 3, TruePlant: new PlantSpec([[1e308]], [[1.0]], null, 1.0, TimeDomain.Continuous))));
         Assert.Contains(simulation.Errors, e => e.Path == "truePlant");
