@@ -69,6 +69,30 @@ public class ConstrainedPlanTests
         return Has("outputMin") || Has("outputMax");
     }
 
+    // Source: the same CVXOPT fixtures. A warm start from the plans of other states (the origin, the state pushed
+    // each way, and the state itself again) must still end at the reference solution.
+    [Theory]
+    [MemberData(nameof(Cases))]
+    public void MatchesCvxoptWhenWarmStartedFromOtherStates(string name)
+    {
+        var c = Fixtures.Case("constrained_plans.json", name);
+        double? rho = c.TryGetProperty("linearViolationWeight", out var w) ? w[0].GetDouble() : null;
+        var model = ModelCompiler.Compile(c.Model(), new CompileOptions { SoftLimitLinearWeight = rho });
+        var state = c.GetProperty("state").Vector();
+        var request = new PlanRequest(state, c.OptionalVector("reference"), c.OptionalVector("previousInput"));
+        var warm = model.CreateWarmStart();
+        foreach (double scale in new[] { 0.0, 1.5, -1.0, 1.0 })
+        {
+            model.Plan(request with { State = state.Select(v => v * scale).ToArray() }, warm);
+            var plan = model.Plan(request, warm);
+
+            Assert.Equal(PlanStatus.Optimal, plan.Status);
+            Assertions.Close(c.GetProperty("inputs").Matrix().Flatten(), plan.Inputs, 1e-6, $"{name}.inputs after ×{scale}");
+            Assertions.CloseScalar(c.GetProperty("costWithoutPenalty").GetDouble(), plan.Cost, 1e-8, $"{name}.cost after ×{scale}");
+            Kkt.CheckPlan(model, request, plan, rho, Slacks(model, plan));
+        }
+    }
+
     private static CompiledModel DoubleIntegrator(LimitsSpec limits, int horizon = 20) =>
         ModelCompiler.Compile(TestModels.Discrete([[1.0, 1.0], [0.0, 1.0]], [[0.5], [1.0]], horizon, [1.0, 0.1], [0.1], limits: limits));
 

@@ -89,6 +89,31 @@ public class ConstrainedPropertyTests
             $"input max: tight [{Numbers(tight.Document.Limits.InputMax)}], loose [{Numbers(loose.Document.Limits.InputMax)}])");
     }
 
+    [Property(MaxTest = 60)]
+    public void AWarmStartFromAnotherStateEndsAtTheColdPlan(int seed)
+    {
+        var scenario = Random(seed);
+        var other = Random(seed + 7919).Request;
+        var model = ModelCompiler.Compile(scenario.Document);
+        var warm = model.CreateWarmStart();
+        if (other.State.Length == model.StateCount)
+        {
+            model.Plan(scenario.Request with { State = other.State }, warm);
+        }
+
+        var cold = model.Plan(scenario.Request);
+        var hot = model.Plan(scenario.Request, warm);
+        if (cold.Status == PlanStatus.IterationLimit)
+        {
+            return; // a plan cut short is the best point so far, which depends on the path by nature
+        }
+
+        Assert.Equal(cold.Status, hot.Status);
+        double scale = Math.Max(1, cold.Inputs.Max(Math.Abs));
+        double gap = cold.Inputs.Zip(hot.Inputs, (x, y) => Math.Abs(x - y)).Max();
+        Assert.True(gap <= 1e-9 * scale, $"{Describe(model, scenario)}: warm plan differs from the cold one by {gap:g3}");
+    }
+
     private static string Describe(CompiledModel model, Scenario scenario) =>
         $"n = {model.StateCount}, m = {model.InputCount}, p = {model.OutputCount}, N = {model.Horizon}; " +
         $"x0 = [{Numbers(scenario.Request.State)}], u₋₁ = {(scenario.Request.PreviousInput is { } u ? $"[{Numbers(u)}]" : "none")}";
