@@ -7,6 +7,7 @@ public static class Program
     /// <summary>
     /// <c>--flops</c> prints the floating-point operation counts of one unconstrained plan and exits;
     /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
+    /// <c>--demo-ratios</c> times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
@@ -15,6 +16,11 @@ public static class Program
         {
             FlopCounter.Print(Console.Out);
             return 0;
+        }
+
+        if (args.Contains("--demo-ratios", StringComparer.OrdinalIgnoreCase))
+        {
+            return DemoRatios.Run(Console.Out);
         }
 
         int timeStates = Array.FindIndex(args, a => a.Equals("--time-states", StringComparison.OrdinalIgnoreCase));
