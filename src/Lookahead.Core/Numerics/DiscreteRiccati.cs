@@ -152,6 +152,9 @@ public static class DiscreteRiccati
 
     private static Matrix<double> Symmetrise(Matrix<double> m) => (m + m.Transpose()) * 0.5;
 
+    /// <summary>An eigenvalue's imaginary part below this is shown as a real number in messages (display only).</summary>
+    private const double ShownAsReal = 1e-12;
+
     private static string Format(System.Numerics.Complex z) =>
-        Math.Abs(z.Imaginary) < 1e-12 ? $"{z.Real:g6}" : $"{z.Real:g6}{(z.Imaginary >= 0 ? "+" : "−")}{Math.Abs(z.Imaginary):g6}i";
+        Math.Abs(z.Imaginary) < ShownAsReal ? $"{z.Real:g6}" : $"{z.Real:g6}{(z.Imaginary >= 0 ? "+" : "−")}{Math.Abs(z.Imaginary):g6}i";
 }

@@ -67,9 +67,17 @@ internal static class HessianCondition
         return condition;
     }
 
+    /// <summary>Size of the ripple on the power iteration's start vector.</summary>
+    private const double StartRipple = 0.01;
+
+    /// <summary>Period of the ripple: a prime, so it lines up with no block structure of H.</summary>
+    private const int StartRipplePeriod = 7;
+
     private static double PowerIteration(Func<Vector<double>, Vector<double>> apply, int size)
     {
-        var v = Vector<double>.Build.Dense(size, i => 1.0 + (0.01 * (i % 7)));
+        // A fixed, not quite uniform start: deterministic, and never orthogonal to a dominant eigenvector that is
+        // itself uniform or alternating in sign (as a pure ones vector could be to the latter).
+        var v = Vector<double>.Build.Dense(size, i => 1.0 + (StartRipple * (i % StartRipplePeriod)));
         v /= v.L2Norm();
         double estimate = 0;
         for (int k = 0; k < MaxPowerIterations; k++)

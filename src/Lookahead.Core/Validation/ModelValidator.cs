@@ -11,6 +11,9 @@ namespace Lookahead.Core.Validation;
 /// </summary>
 public static class ModelValidator
 {
+    /// <summary>Longest label: enough for any tag name, short enough for a chart axis and a CSV header.</summary>
+    public const int MaxLabelLength = 64;
+
     /// <summary>Relative tolerance for symmetry: |W_ij − W_ji| ≤ tol·max|W|, against the weight's own scale.</summary>
     public const double SymmetryTolerance = 1e-9;
 
@@ -568,9 +571,9 @@ public static class ModelValidator
         var seen = new HashSet<string>(StringComparer.Ordinal);
         for (int i = 0; i < names.Length; i++)
         {
-            if (string.IsNullOrWhiteSpace(names[i]) || names[i].Length > 64)
+            if (string.IsNullOrWhiteSpace(names[i]) || names[i].Length > MaxLabelLength)
             {
-                errors.Add(new($"{path}[{i}]", "must be a non-empty name of at most 64 characters"));
+                errors.Add(new($"{path}[{i}]", $"must be a non-empty name of at most {MaxLabelLength} characters"));
             }
             else if (!seen.Add(names[i]))
             {
