@@ -1,16 +1,18 @@
+using Lookahead.Api;
 using Lookahead.Api.Aliases;
 using Lookahead.Api.Hosting;
+using Lookahead.Api.Http;
 using Lookahead.Api.Models;
 using Lookahead.Api.Plans;
 using Lookahead.Api.Replay;
 using Lookahead.Api.Simulation;
 
-// Hosting/ holds what every feature stands on; each feature folder registers and maps itself.
+// Hosting/ holds what every feature stands on; each feature folder registers (when it has services) and maps itself.
 var builder = WebApplication.CreateBuilder(args);
 builder.AddLookaheadConfiguration(args);
 builder.AddLookaheadLogging();
 builder.Services.AddLookaheadHosting();
-builder.Services.AddModels().AddPlans().AddReplay().AddSimulation().AddAliases();
+builder.Services.AddPlans().AddReplay().AddJsonContext(ApiJsonContext.Default);
 
 var app = builder.Build();
 app.UseLookaheadPipeline();

@@ -145,8 +145,8 @@ public class PlanTests
         // The metadata the service writes a plan response with must come from the generated context, not reflection.
         var info = options.GetTypeInfo(typeof(PlanResponse));
 
-        Assert.Same(PlansJsonContext.Default, info.OriginatingResolver);
-        Assert.Same(PlansJsonContext.Default, options.GetTypeInfo(typeof(PlanRequestDto)).OriginatingResolver);
+        Assert.Same(ApiJsonContext.Default, info.OriginatingResolver);
+        Assert.Same(ApiJsonContext.Default, options.GetTypeInfo(typeof(PlanRequestDto)).OriginatingResolver);
     }
 
     private static void AssertClose(double[] expected, double[] actual)

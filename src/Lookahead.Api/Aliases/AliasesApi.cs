@@ -11,8 +11,6 @@ namespace Lookahead.Api.Aliases;
 /// <summary>Named pointers to models, so a station can follow a re-tuned model without reconfiguration.</summary>
 public static class AliasesApi
 {
-    public static IServiceCollection AddAliases(this IServiceCollection services) => services.AddJsonContext(AliasesJsonContext.Default);
-
     public static RouteGroupBuilder MapAliasesApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);

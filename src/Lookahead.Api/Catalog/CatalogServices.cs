@@ -14,7 +14,6 @@ public static class CatalogServices
         services.AddSingleton<CatalogMetrics>();
         services.AddSingleton<CompiledModelCache>();
         services.AddSingleton<ModelCatalog>();
-        services.AddJsonContext(CatalogJsonContext.Default);
         services.ConfigureSwaggerGen(o =>
         {
             o.MapType<WeightDto>(() => new OpenApiSchema

@@ -12,8 +12,6 @@ public static class ModelsApi
     public const int DefaultPageSize = 50;
     public const int MaxPageSize = 500;
 
-    public static IServiceCollection AddModels(this IServiceCollection services) => services.AddJsonContext(ModelsJsonContext.Default);
-
     public static RouteGroupBuilder MapModelsApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);

@@ -49,7 +49,7 @@ public static class PlanEchoApi
             }
 
             var response = PlanMapping.ToResponse(id, null, call.Plan, call.SolveMicroseconds);
-            bytes = JsonSerializer.SerializeToUtf8Bytes(response, PlansJsonContext.Default.PlanResponse);
+            bytes = JsonSerializer.SerializeToUtf8Bytes(response, services.Reader.SerializerOptions);
             Bodies[id] = bytes;
         }
 

@@ -14,7 +14,6 @@ public static class PlansApi
         services.AddOptions<DiagnosticsOptions>().BindConfiguration(DiagnosticsOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<PlanMetrics>();
         services.AddSingleton<PlanRunner>();
-        services.AddJsonContext(PlansJsonContext.Default);
         services.ConfigureSwaggerGen(o => o.MapType<TrajectoryRows>(() => new Microsoft.OpenApi.OpenApiSchema
         {
             Description = "Rows of a trajectory (one row per step); numbers carry 15 significant digits.",

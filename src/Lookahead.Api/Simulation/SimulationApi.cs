@@ -10,8 +10,6 @@ namespace Lookahead.Api.Simulation;
 /// <summary>Closed-loop simulation: what the controller would do over time, optionally against a different true plant.</summary>
 public static class SimulationApi
 {
-    public static IServiceCollection AddSimulation(this IServiceCollection services) => services.AddJsonContext(SimulationJsonContext.Default);
-
     public static RouteGroupBuilder MapSimulationApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);
