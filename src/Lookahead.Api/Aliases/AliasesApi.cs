@@ -19,21 +19,18 @@ public static class AliasesApi
             .WithName("SetAlias")
             .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
             .Accepts<AliasRequest>("application/json")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
+            .ProducesLookupProblems()
             .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
 
         group.MapGet("/{name}", GetAsync)
             .WithName("GetAlias")
             .WithSummary("An alias's current model and its history with timestamps")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound);
+            .ProducesLookupProblems();
 
         group.MapDelete("/{name}", DeleteAsync)
             .WithName("DeleteAlias")
             .WithSummary("Delete an alias and its history (the model stays)")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound);
+            .ProducesLookupProblems();
 
         group.MapPost("/{name}/plan", PlanAsync)
             .WithName("PlanForAlias")

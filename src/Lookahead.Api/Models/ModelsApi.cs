@@ -30,21 +30,18 @@ public static class ModelsApi
         group.MapGet("/{id}", GetAsync)
             .WithName("GetModel")
             .WithSummary("A registered model's document, dimensions and diagnostics")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound);
+            .ProducesLookupProblems();
 
         group.MapDelete("/{id}", DeleteAsync)
             .WithName("DeleteModel")
             .WithSummary("Delete a model (refused while an alias points at it)")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound)
+            .ProducesLookupProblems()
             .ProducesProblem(StatusCodes.Status409Conflict);
 
         group.MapGet("/{id}/gain", GetGainAsync)
             .WithName("GetModelGain")
             .WithSummary("The receding-horizon gain K (u0 = −K x0), closed-loop eigenvalues and spectral radius")
-            .ProducesProblem(StatusCodes.Status400BadRequest)
-            .ProducesProblem(StatusCodes.Status404NotFound);
+            .ProducesLookupProblems();
 
         return group;
     }
