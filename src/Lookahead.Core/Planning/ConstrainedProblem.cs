@@ -26,6 +26,22 @@ internal sealed class ConstrainedProblem
         SoftLimits = new SoftLimitPolicy(model, gains.Hessian);
         Rows = new LimitRows(model, a, b, SoftLimits.Outputs);
         var factor = SoftLimits.Count > 0 ? gains.Factor.WithDiagonalBlock(SoftLimits.Weights) : gains.Factor;
+        if (SoftLimits.Count > 0)
+        {
+            var limits = model.Limits;
+            var soft = SoftLimits.Outputs;
+            var cs = new double[soft.Length * model.StateCount];
+            for (int t = 0; t < soft.Length; t++)
+            {
+                for (int i = 0; i < model.StateCount; i++)
+                {
+                    cs[(t * model.StateCount) + i] = model.C[soft[t], i];
+                }
+            }
+
+            ForcedViolation = new ForcedViolationBound(a, b, cs, soft.Select(j => limits.OutputMin[j]).ToArray(), soft.Select(j => limits.OutputMax[j]).ToArray(), model.Horizon, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax);
+        }
+
         Solver = new DualActiveSetSolver(factor, Rows.Normals, 0);
     }
 
@@ -34,6 +50,9 @@ internal sealed class ConstrainedProblem
     public SoftLimitPolicy SoftLimits { get; }
 
     public DualActiveSetSolver Solver { get; }
+
+    /// <summary>The least soft-limit violation the hard limits force (null without soft limits).</summary>
+    public ForcedViolationBound? ForcedViolation { get; }
 
     public int RowCount => Rows.Count;
 
@@ -67,7 +86,8 @@ internal sealed class ConstrainedProblem
             // Only the inputs that cannot reach their window lose their first rate limit; the others keep theirs.
             Rows.RightHandSides(x0, previousInput, unreachable, rhsSpan);
             inputs.CopyTo(startSpan);
-            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, warmStart: warm is not null);
+            var request = new SoftLimitPolicy.Request(x0, previousInput, unreachable, ForcedViolation);
+            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, request, warmStart: warm is not null);
             xSpan[..nm].CopyTo(inputs);
 
             // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an

@@ -33,6 +33,18 @@ internal sealed class SoftLimitPolicy
     /// <summary>An output excess above this is reported as a warning; below it is the solver's rounding.</summary>
     public const double ReportedViolation = 1e-9;
 
+    /// <summary>The request's parts the forced-violation bound reads, and the bound (null without one).</summary>
+    public readonly ref struct Request(ReadOnlySpan<double> state, ReadOnlySpan<double> previousInput, IReadOnlyList<int> relaxed, ForcedViolationBound? bound)
+    {
+        public ReadOnlySpan<double> State { get; } = state;
+
+        public ReadOnlySpan<double> PreviousInput { get; } = previousInput;
+
+        public IReadOnlyList<int> Relaxed { get; } = relaxed;
+
+        public ForcedViolationBound? Bound { get; } = bound;
+    }
+
     private readonly ValidatedLimits limits;
     private readonly int horizon;
 
@@ -63,7 +75,9 @@ internal sealed class SoftLimitPolicy
     /// </summary>
     /// <returns>The accepted solve, the iterations of every solve that counted, and the penalty at the solution.</returns>
     /// <param name="warmStart">Start the first solve from the workspace's last active set; later solves of the same plan always do.</param>
-    public (QpResult Result, int Iterations, double Penalty) Solve(DualActiveSetSolver solver, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, double? fixedWeight, int maxIterations, QpWorkspace workspace, bool warmStart = false)
+    /// <param name="request">What the forced-violation bound needs; the bound is computed only when a raise is
+    /// considered, and a raise that could not shrink the slack enough is not tried.</param>
+    public (QpResult Result, int Iterations, double Penalty) Solve(DualActiveSetSolver solver, ReadOnlySpan<double> start, ReadOnlySpan<double> rhs, Span<double> x, double? fixedWeight, int maxIterations, QpWorkspace workspace, Request request, bool warmStart = false)
     {
         int nm = x.Length - Count;
         double rho = fixedWeight ?? AutomaticLinearWeight;
@@ -72,9 +86,16 @@ internal sealed class SoftLimitPolicy
         int iterations = result.Iterations;
         if (fixedWeight is null && result.Status == QpStatus.Optimal)
         {
+            double forced = -1;
             for (int raise = 0; raise < MaxRaises && MaxSlack(x[nm..]) > NegligibleSlack; raise++)
             {
                 double before = MaxSlack(x[nm..]);
+                if (request.Bound is { } bound && (forced >= 0 ? forced : forced = bound.Compute(request.State, request.PreviousInput, request.Relaxed)) >= WorthwhileShrink * before)
+                {
+                    // No plan within the hard limits comes below this violation, so a raise would be refused anyway.
+                    break;
+                }
+
                 // The same limits at a higher price: the active set just found is the natural start.
                 var retry = SolveAt(solver, rho * RaiseFactor, start, rhs, x, maxIterations, workspace, warmStart: true);
                 iterations += retry.Iterations;

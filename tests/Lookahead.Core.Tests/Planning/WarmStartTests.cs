@@ -12,7 +12,7 @@ namespace Lookahead.Core.Tests.Planning;
 public class WarmStartTests
 {
     /// <summary>The cold-store demo's plant (continuous, 60 s sample time) with all its limits.</summary>
-    private static CompiledModel ColdStore() => ModelCompiler.Compile(new ModelDocument(
+    internal static CompiledModel ColdStore() => ModelCompiler.Compile(new ModelDocument(
         "cold-store",
         new PlantSpec(
             [[-0.000417, 0.000139, 0.0], [0.000139, -0.000556, 0.000139], [0.0, 0.000139, -0.000417]],
