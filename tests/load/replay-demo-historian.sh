@@ -3,10 +3,12 @@
 # NDJSON and as CSV, and the same number of independent random rows, printing seconds and rows/s for each.
 # The trajectory is consecutive states of a noisy closed loop (a saturated, rate-limited linear feedback on the
 # demo's discretised plant with process noise, load steps and setpoint changes), so neighbouring rows are alike,
-# as in a real export. ROWS (default 1,000,000) sets the length. Needs /usr/bin/python3 with numpy (Debian).
+# as in a real export. ROWS (default 1,000,000) sets the length; RANDOM_ROWS (default 50,000) the independent rows,
+# which cost a cold solve each. Needs /usr/bin/python3 with numpy (Debian).
 source "$(dirname "${BASH_SOURCE[0]}")/common.sh"
 trap stop_service EXIT
 rows="${ROWS:-1000000}"
+random_rows="${RANDOM_ROWS:-50000}"
 
 build_service
 start_service
@@ -14,10 +16,10 @@ id="$(curl -fsS "$base/v1/aliases/cold-store-demo" | python3 -c 'import json, sy
 curl -fsS "$base/v1/models/$id" >"$work_dir/model.json"
 curl -fsS "$base/v1/models/$id/gain" >"$work_dir/gain.json"
 
-/usr/bin/python3 - "$rows" "$work_dir" <<'PY'
+/usr/bin/python3 - "$rows" "$random_rows" "$work_dir" <<'PY'
 import json, sys
 import numpy as np
-rows, folder = int(sys.argv[1]), sys.argv[2]
+rows, random_rows, folder = int(sys.argv[1]), int(sys.argv[2]), sys.argv[3]
 model = json.load(open(f"{folder}/model.json"))
 a, b = np.array(model["discreteA"]), np.array(model["discreteB"])
 k = np.array(json.load(open(f"{folder}/gain.json"))["k"])
@@ -41,10 +43,11 @@ with open(f"{folder}/trajectory.csv", "w") as csv, open(f"{folder}/trajectory.nd
             load = rng.uniform(0.0, 0.004, size=n)
         csv.write(f"{step * 60},{fmt(x)},{fmt(r)},{fmt(u)}\n")
         nd.write('{"state":[' + fmt(x) + '],"reference":[' + fmt(r) + '],"previousInput":[' + fmt(u) + ']}\n')
-        xr, ur = rng.uniform(-1.0, 3.0, size=n), rng.uniform(0.0, 1.0, size=m)
-        rr = rng.choice([-1.0, 0.0, 0.5], size=n)
-        rcsv.write(f"{step * 60},{fmt(xr)},{fmt(rr)},{fmt(ur)}\n")
-        rnd.write('{"state":[' + fmt(xr) + '],"reference":[' + fmt(rr) + '],"previousInput":[' + fmt(ur) + ']}\n')
+        if step < random_rows:
+            xr, ur = rng.uniform(-1.0, 3.0, size=n), rng.uniform(0.0, 1.0, size=m)
+            rr = rng.choice([-1.0, 0.0, 0.5], size=n)
+            rcsv.write(f"{step * 60},{fmt(xr)},{fmt(rr)},{fmt(ur)}\n")
+            rnd.write('{"state":[' + fmt(xr) + '],"reference":[' + fmt(rr) + '],"previousInput":[' + fmt(ur) + ']}\n')
         target = np.clip(u - k @ (x - r) * 0.5, umin, umax)
         u = np.clip(np.clip(target, u + dmin, u + dmax), umin, umax)
         x = a @ x + b @ u + load + rng.normal(0.0, 0.002, size=n)
@@ -62,9 +65,10 @@ post() { # file content-type -> prints "seconds lines"
 post "$work_dir/warm.ndjson" application/x-ndjson >/dev/null
 printf "%-11s %-7s %10s %12s %10s\n" rows format seconds rows/s lines-out
 for kind in trajectory random; do
+  count="$rows"; if [ "$kind" = random ]; then count="$random_rows"; fi
   for format in ndjson csv; do
     if [ "$format" = ndjson ]; then type=application/x-ndjson; else type=text/csv; fi
     read -r seconds lines < <(post "$work_dir/$kind.$format" "$type")
-    printf "%-11s %-7s %10s %12s %10s\n" "$kind" "$format" "$seconds" "$(python3 -c "print(int($rows / $seconds))")" "$lines"
+    printf "%-11s %-7s %10s %12s %10s\n" "$kind" "$format" "$seconds" "$(python3 -c "print(int($count / $seconds))")" "$lines"
   done
 done
