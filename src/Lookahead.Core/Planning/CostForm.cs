@@ -6,21 +6,32 @@ namespace Lookahead.Core.Planning;
 /// <summary>
 /// The optimal unconstrained cost as a quadratic form of the request, J* = zᵀMz with z ordered as
 /// <see cref="RequestLayout"/> says, so that a first-move-only answer (replay) needs no trajectory.
-/// M = M₀ − FᵀH⁻¹F where M₀ is J at U = 0 and F the gradient maps.
+/// M = M₀ − FᵀH⁻¹F where M₀ is J at U = 0 and F the gradient maps (built by <see cref="GainSet.Solve"/>).
 /// </summary>
 internal sealed class CostForm
 {
     private readonly double[] form;
     private readonly RequestLayout layout;
 
-    /// <param name="free">M₀ (see <see cref="Assemble"/>).</param>
-    /// <param name="gradientMaps">F = [Fx Fr Fxs Fus Fup], N·m × <see cref="RequestLayout.Size"/>.</param>
-    /// <param name="gains">K = H⁻¹F, same shape and column order.</param>
-    public CostForm(Matrix<double> free, Matrix<double> gradientMaps, Matrix<double> gains, int n, int m, int p)
+    /// <param name="total">M = M₀ − FᵀH⁻¹F, <see cref="RequestLayout.Size"/> square, column-major; symmetrised into
+    /// the form (its two triangles differ only by rounding) and not kept.</param>
+    public CostForm(ReadOnlySpan<double> total, RequestLayout layout)
     {
-        layout = new RequestLayout(n, m, p);
-        var total = free - gradientMaps.TransposeThisAndMultiply(gains);
-        form = DenseMatrix.RowMajor((total + total.Transpose()) * 0.5);
+        int size = layout.Size;
+        if (total.Length != size * size)
+        {
+            throw new ArgumentException($"the form has {total.Length} entries; expected {size}×{size}", nameof(total));
+        }
+
+        this.layout = layout;
+        form = new double[size * size];
+        for (int i = 0; i < size; i++)
+        {
+            for (int j = 0; j < size; j++)
+            {
+                form[(i * size) + j] = (total[(j * size) + i] + total[(i * size) + j]) * 0.5;
+            }
+        }
     }
 
     public int Size => layout.Size;

@@ -4,47 +4,80 @@ using MathNet.Numerics.LinearAlgebra;
 namespace Lookahead.Core.Planning;
 
 /// <summary>
-/// The condensed Hessian for one variant of the problem (with or without the Δu_0 term), its Cholesky
-/// factor, and the precomputed maps from each request-dependent vector to the unconstrained optimum:
-/// U* = −(Kx·x_0 + Kr·r + Kxs·x_s + Kus·u_s + Kup·u_{−1}) (the request in <see cref="RequestLayout"/> order).
-/// All maps column-major with N·m rows (see <see cref="DenseKernels.MultiplyAddColumns(ReadOnlySpan{double}, int, ReadOnlySpan{double}, Span{double})"/>);
+/// One variant of the problem (with or without the Δu_0 term): the precomputed maps from each request-dependent
+/// vector to the unconstrained optimum, U* = −(Kx·x_0 + Kr·r + Kxs·x_s + Kus·u_s + Kup·u_{−1}) (the request in
+/// <see cref="RequestLayout"/> order), the optimal cost as a form of the request, and — when a plan can need it —
+/// the Cholesky factor of the condensed Hessian. All maps are column-major with N·m rows, contiguous in one array
+/// (see <see cref="DenseKernels.MultiplyAddColumns(ReadOnlySpan{double}, int, ReadOnlySpan{double}, Span{double})"/>);
 /// immutable after construction.
 /// </summary>
+/// <remarks>
+/// The factor is what limited plans (their solver starts from it) and refined plans (each refinement step solves
+/// with it) read; the compiler keeps it for exactly those models. A model with neither answers every plan from the
+/// maps alone, and not keeping an N·m × N·m factor is most of its memory. The Hessian itself is never stored: it is
+/// <see cref="FactoredSymmetricMatrix"/> over the factor.
+/// </remarks>
 internal sealed class GainSet
 {
-    public GainSet(Matrix<double> hessian, CholeskyFactor factor, double[] kx, double[] kr, double[] kxs, double[] kus, double[] kup, CostForm costForm)
+    private readonly double[] gains;
+    private readonly RequestLayout layout;
+    private readonly CholeskyFactor? factor;
+    private readonly FactoredSymmetricMatrix? hessian;
+
+    /// <param name="gains">K = H⁻¹F, N·m × <see cref="RequestLayout.Size"/>, column-major, kept (not copied).</param>
+    /// <param name="factor">L with H = LLᵀ, or null when no plan of this model needs it.</param>
+    public GainSet(int rows, RequestLayout layout, double[] gains, CostForm costForm, CholeskyFactor? factor)
     {
+        if (gains.Length != rows * layout.Size)
+        {
+            throw new ArgumentException($"the gains have {gains.Length} entries; expected {rows}×{layout.Size}", nameof(gains));
+        }
+
+        if (factor is not null && factor.Size != rows)
+        {
+            throw new ArgumentException($"the factor is {factor.Size}×{factor.Size}; expected {rows}×{rows}", nameof(factor));
+        }
+
+        Rows = rows;
+        this.layout = layout;
+        this.gains = gains;
+        this.factor = factor;
+        hessian = factor is null ? null : new FactoredSymmetricMatrix(factor);
         CostForm = costForm;
-        Hessian = hessian;
-        Factor = factor;
-        Kx = kx;
-        Kr = kr;
-        Kxs = kxs;
-        Kus = kus;
-        Kup = kup;
     }
 
-    /// <summary>H = ΓᵀQ̄Γ + R̄ + DᵀS̄D, so that J(U) = UᵀHU + 2fᵀU + const.</summary>
-    public Matrix<double> Hessian { get; }
+    /// <summary>
+    /// H = ΓᵀQ̄Γ + R̄ + DᵀS̄D, so that J(U) = UᵀHU + 2fᵀU + const — computed from the factor entry by entry when read
+    /// (see <see cref="FactoredSymmetricMatrix"/>).
+    /// </summary>
+    /// <exception cref="InvalidOperationException">The factor was not kept (<see cref="HasFactor"/>).</exception>
+    public Matrix<double> Hessian => hessian ?? throw NotKept();
 
     /// <summary>Lower-triangular L with H = LLᵀ.</summary>
-    public CholeskyFactor Factor { get; }
+    /// <exception cref="InvalidOperationException">The factor was not kept (<see cref="HasFactor"/>).</exception>
+    public CholeskyFactor Factor => factor ?? throw NotKept();
+
+    /// <summary>True when the factor (and so <see cref="Hessian"/>) was kept: the model has limits or takes refinement steps.</summary>
+    public bool HasFactor => factor is not null;
 
     /// <summary>J* as a quadratic form of the request, for first-move-only answers.</summary>
     public CostForm CostForm { get; }
 
-    public double[] Kx { get; }
+    public ReadOnlySpan<double> Kx => Map(layout.StateStart, layout.StateCount);
 
-    public double[] Kr { get; }
+    public ReadOnlySpan<double> Kr => Map(layout.ReferenceStart, layout.OutputCount);
 
-    public double[] Kxs { get; }
+    public ReadOnlySpan<double> Kxs => Map(layout.TargetStateStart, layout.StateCount);
 
-    public double[] Kus { get; }
+    public ReadOnlySpan<double> Kus => Map(layout.TargetInputStart, layout.InputCount);
 
-    public double[] Kup { get; }
+    public ReadOnlySpan<double> Kup => Map(layout.PreviousInputStart, layout.InputCount);
 
     /// <summary>N·m, the rows of every map.</summary>
-    public int Rows => Hessian.RowCount;
+    public int Rows { get; }
+
+    /// <summary>Memory held: the maps, the cost form and the factor when kept (its square array).</summary>
+    public long Bytes => sizeof(double) * ((long)gains.Length + ((long)CostForm.Size * CostForm.Size) + (factor is null ? 0 : (long)factor.Size * factor.Size));
 
     /// <summary>
     /// The unconstrained optimum's leading rows: destination = −(Kx·x_0 + Kr·r + Kxs·x_s + Kus·u_s + Kup·u_{−1}) over
@@ -75,5 +108,28 @@ internal sealed class GainSet
         }
     }
 
-    public long Bytes => sizeof(double) * ((2L * Hessian.RowCount * Hessian.ColumnCount) + Kx.Length + Kr.Length + Kxs.Length + Kus.Length + Kup.Length + ((long)CostForm.Size * CostForm.Size));
+    /// <summary>
+    /// Turns the gradient maps of one variant into its gains and cost form, given H's factor: with Y = L⁻¹F,
+    /// the cost form is M₀ − YᵀY (= M₀ − FᵀH⁻¹F, exactly symmetric and with no second product by F) and the gains
+    /// are K = L⁻ᵀY, both solves in place in <paramref name="maps"/>.
+    /// </summary>
+    /// <param name="lower">L in the lower triangle of an N·m × N·m column-major array (the rest is not read).</param>
+    /// <param name="maps">F on entry, K on return (N·m × <see cref="RequestLayout.Size"/>, column-major).</param>
+    /// <param name="columns">How many leading columns of F can be nonzero; the rest are zero and stay so.</param>
+    /// <param name="free">M₀ of this variant.</param>
+    /// <returns>The cost form, or null when a gain is not finite (H too close to singular for its solves).</returns>
+    public static CostForm? Solve(DenseLinearAlgebra algebra, double[] lower, int rows, RequestLayout layout, double[] maps, int columns, Matrix<double> free)
+    {
+        algebra.SolveLower(false, rows, columns, lower, rows, maps, rows);
+        int size = layout.Size;
+        var form = free.ToColumnMajorArray();
+        algebra.Multiply(true, false, size, size, rows, -1.0, maps, rows, maps, rows, 1.0, form, size);
+        algebra.SolveLower(true, rows, columns, lower, rows, maps, rows);
+        return DenseKernels.AllFinite(maps) && DenseKernels.AllFinite(form) ? new CostForm(form, layout) : null;
+    }
+
+    private ReadOnlySpan<double> Map(int start, int count) => gains.AsSpan(start * Rows, count * Rows);
+
+    private static InvalidOperationException NotKept() =>
+        new("the Hessian's factor is kept only for models with limits or refinement steps, and this model has neither");
 }

@@ -16,7 +16,11 @@ public static class ModelCompiler
 
     /// <summary>Compiles <paramref name="document"/>.</summary>
     /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
-    public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null)
+    public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null) =>
+        Compile(document, options, DenseLinearAlgebra.Default);
+
+    /// <summary>Compiles <paramref name="document"/> with the dense kernels of <paramref name="algebra"/> (tests compare the two).</summary>
+    internal static CompiledModel Compile(ModelDocument document, CompileOptions? options, DenseLinearAlgebra algebra)
     {
         options ??= CompileOptions.Default;
         var model = ModelValidator.Build(document, options.SizeLimits);
@@ -56,9 +60,7 @@ public static class ModelCompiler
                 break;
         }
 
-        bool hasRateWeight = model.InputRateWeight.Enumerate().Any(v => v != 0);
-        var withoutPrevious = BuildGains(model, a, b, terminal, withPreviousInput: false);
-        var withPrevious = hasRateWeight ? BuildGains(model, a, b, terminal, withPreviousInput: true) : withoutPrevious;
+        var (withoutPrevious, withPrevious, condition) = BuildGains(model, a, b, terminal, algebra);
         var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight));
         ConstrainedProblem? constrainedWithout = null;
         ConstrainedProblem? constrainedWith = null;
@@ -85,10 +87,17 @@ public static class ModelCompiler
         var stabilisable = Guarded("plant.b", "stabilisability could not be tested", () => SystemProperties.Stabilisable(a, b));
         var detectable = Guarded("cost.outputWeight", "detectability through the output weight could not be tested", () => SystemProperties.Detectable(a, qx));
         double openLoopRadius = Guarded("plant.a", "the eigenvalues of A could not be computed", () => SystemProperties.SpectralRadius(a));
-        var gainRows = Matrix<double>.Build.Dense(model.InputCount, n, (i, j) => withoutPrevious.Kx[(j * model.Horizon * model.InputCount) + i]);
+        var gainRows = Matrix<double>.Build.Dense(model.InputCount, n);
+        for (int j = 0; j < n; j++)
+        {
+            for (int i = 0; i < model.InputCount; i++)
+            {
+                gainRows[i, j] = withoutPrevious.Kx[(j * withoutPrevious.Rows) + i];
+            }
+        }
+
         var closedLoop = Guarded("cost.horizon", "the closed-loop eigenvalues could not be computed", () => SystemProperties.Eigenvalues(a - (b * gainRows)));
         double closedLoopRadius = closedLoop.Select(z => z.Magnitude).DefaultIfEmpty(0).Max();
-        double condition = Guarded("cost.inputWeight", "the condition number of the condensed Hessian could not be computed", () => HessianCondition.Compute(withoutPrevious.Hessian, withoutPrevious.Factor));
 
         if (closedLoopRadius >= 1)
         {
@@ -172,44 +181,83 @@ public static class ModelCompiler
         }
     }
 
-    private static GainSet BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, bool withPreviousInput)
+    /// <summary>
+    /// Both variants' gains (one object when S = 0) and the condition number of the Hessian without the Δu_0 term.
+    /// The program is condensed once; H is factored in place, its strict upper triangle keeping H so that the
+    /// variant with the Δu_0 term (H plus S on its first block) is rebuilt from it without a second copy. The factor
+    /// is kept only when a plan can read it: under limits (the solver starts from it) or when the condition number
+    /// calls for refinement steps.
+    /// </summary>
+    private static (GainSet WithoutPrevious, GainSet WithPrevious, double Condition) BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, DenseLinearAlgebra algebra)
     {
-        var condensed = Condensing.Build(a, b, model.C, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal, model.Horizon, withPreviousInput);
-        var maps = condensed.Fx.Append(condensed.Fr).Append(condensed.Fxs).Append(condensed.Fus).Append(condensed.Fup);
-        if (!DenseMatrix.AllFinite(condensed.Hessian) || !DenseMatrix.AllFinite(maps) || !DenseMatrix.AllFinite(condensed.FreeCost))
+        var condensed = Condensing.Condense(a, b, model.C, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal, model.Horizon, algebra);
+        if (!DenseKernels.AllFinite(condensed.Hessian) || !DenseKernels.AllFinite(condensed.Maps) || !MatrixScale.AllFinite(condensed.FreeCost))
         {
             throw new ModelValidationException("cost.horizon", "the predictions overflow over this horizon: the plant grows too fast for condensing; shorten the horizon or pre-stabilise the plant");
         }
 
+        int rows = condensed.Rows;
+        var layout = condensed.Layout;
+        var hessian = condensed.Hessian;
+        bool hasRateWeight = condensed.HasRateWeight;
+
+        // What the factorisation overwrites and the other steps still need: H itself for the exact eigenvalues
+        // (small sizes only), its diagonal for the second variant, and F for the second variant's solves.
+        double[]? exact = rows <= HessianCondition.ExactUpTo ? (double[])hessian.Clone() : null;
+        var diagonal = new double[rows];
+        for (int i = 0; i < rows; i++)
+        {
+            diagonal[i] = hessian[(i * rows) + i];
+        }
+
+        double[]? mapsWithPrevious = null;
+        if (hasRateWeight)
+        {
+            mapsWithPrevious = (double[])condensed.Maps.Clone();
+            condensed.PreviousInputMap(mapsWithPrevious);
+        }
+
         // R ≻ 0 is judged relative to R alone; next to the rest of the cost it can still be too small to keep
         // the condensed Hessian definite in double precision (inputs the plant cannot tell apart, say).
-        MathNet.Numerics.LinearAlgebra.Factorization.Cholesky<double> cholesky;
-        try
-        {
-            cholesky = condensed.Hessian.Cholesky();
-        }
-        catch (ArgumentException)
+        if (!algebra.CholeskyLower(hessian, rows, rows))
         {
             throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
         }
 
-        var gains = cholesky.Solve(maps);
-        if (!DenseMatrix.AllFinite(gains))
+        // Without the Δu_0 term Fup is zero, so only the columns before it are solved.
+        var mapsWithout = condensed.Maps;
+        var formWithout = GainSet.Solve(algebra, hessian, rows, layout, mapsWithout, layout.PreviousInputStart, condensed.FreeCost)
+            ?? throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
+        double condition = Guarded("cost.inputWeight", "the condition number of the condensed Hessian could not be computed", () => HessianCondition.Compute(algebra, rows, exact, hessian));
+        bool keepFactor = model.Limits.Any || condition > CompiledModel.RefinementCondition;
+        var withoutPrevious = new GainSet(rows, layout, mapsWithout, formWithout, keepFactor ? KeepFactor(hessian, rows) : null);
+        if (mapsWithPrevious is null)
+        {
+            return (withoutPrevious, withoutPrevious, condition);
+        }
+
+        // H with the Δu_0 term: the lower triangle back from the upper one, the diagonal, then S on the first block.
+        for (int j = 0; j < rows; j++)
+        {
+            hessian[(j * rows) + j] = diagonal[j];
+            for (int i = j + 1; i < rows; i++)
+            {
+                hessian[(j * rows) + i] = hessian[(i * rows) + j];
+            }
+        }
+
+        condensed.AddPreviousInputTerm(hessian);
+        if (!algebra.CholeskyLower(hessian, rows, rows))
         {
             throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
         }
-        int n = a.RowCount;
-        int m = b.ColumnCount;
-        int p = model.C.RowCount;
-        double[] Columns(int from, int count) => DenseMatrix.ColumnMajor(gains.SubMatrix(0, gains.RowCount, from, count));
-        return new GainSet(
-            condensed.Hessian,
-            new CholeskyFactor(cholesky),
-            Columns(0, n),
-            Columns(n, p),
-            Columns(n + p, n),
-            Columns(n + p + n, m),
-            Columns(n + p + n + m, m),
-            new CostForm(condensed.FreeCost, maps, gains, n, m, p));
+
+        var formWith = GainSet.Solve(algebra, hessian, rows, layout, mapsWithPrevious, layout.Size, condensed.FreeCostWithPreviousInput())
+            ?? throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
+        var withPrevious = new GainSet(rows, layout, mapsWithPrevious, formWith, keepFactor ? KeepFactor(hessian, rows) : null);
+        return (withoutPrevious, withPrevious, condition);
     }
+
+    /// <summary>The factor in the lower triangle of <paramref name="lower"/>, copied into the immutable form plans read.</summary>
+    private static CholeskyFactor KeepFactor(double[] lower, int rows) => new(ComputedCholesky.WrapLower(lower, rows));
 }
