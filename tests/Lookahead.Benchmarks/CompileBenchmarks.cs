@@ -2,6 +2,7 @@ using BenchmarkDotNet.Attributes;
 using Lookahead.Core.Models;
 using Lookahead.Core.Numerics;
 using Lookahead.Core.Planning;
+using Lookahead.Core.Validation;
 
 namespace Lookahead.Benchmarks;
 
@@ -29,6 +30,9 @@ public class CompileBenchmarks
     [Params("default", "managed")]
     public string Kernels { get; set; } = "default";
 
+    /// <summary>The largest model is above the default N·m limit (1000): allowed here to measure what that limit avoids.</summary>
+    private static readonly CompileOptions options = new() { SizeLimits = SizeLimits.Default with { MaxDecisionVariables = 2000 } };
+
     [GlobalSetup]
     public void Setup()
     {
@@ -36,14 +40,14 @@ public class CompileBenchmarks
         algebra = Kernels == "managed" ? DenseLinearAlgebra.Managed : DenseLinearAlgebra.Default;
         // What one compiled model keeps alive, against what it reports for cache accounting.
         long before = GC.GetTotalMemory(forceFullCollection: true);
-        var compiled = ModelCompiler.Compile(document, null, algebra);
+        var compiled = ModelCompiler.Compile(document, options, algebra);
         long retained = GC.GetTotalMemory(forceFullCollection: true) - before;
         Console.WriteLine($"// {Model} ({document.Name}) on {algebra.Name} kernels: n={compiled.StateCount} m={compiled.InputCount} N={compiled.Horizon} decision variables={compiled.DecisionVariables} Hessian condition={compiled.Diagnostics.HessianCondition:g3} EstimatedBytes={compiled.EstimatedBytes:N0} retained={retained:N0}");
         GC.KeepAlive(compiled);
     }
 
     [Benchmark]
-    public CompiledModel Compile() => ModelCompiler.Compile(document, null, algebra);
+    public CompiledModel Compile() => ModelCompiler.Compile(document, options, algebra);
 
     /// <summary>A ∈ [−1, 1]^{n×n}·0.9/√n (spectral radius about 0.9), B ∈ [−1, 1]^{n×m}, Q = I, R = S = 0.1·I.</summary>
     private static ModelDocument LargestDocument()

@@ -72,31 +72,28 @@ public sealed class CholeskyFactor
     /// <summary>L, row-major (upper triangle zero). Read-only view.</summary>
     public ReadOnlySpan<double> Lower => lower;
 
-    /// <summary>(Lᵀ)⁻¹ = (L⁻¹)ᵀ, column-major: column c of the result is row c of L⁻¹. Forward substitution, n³/3 flops.</summary>
+    /// <summary>(Lᵀ)⁻¹ = (L⁻¹)ᵀ, column-major: column c of the result is row c of L⁻¹. One triangular solve against I, n³/3 flops.</summary>
     public double[] InverseTransposeColumnMajor()
     {
+        // L⁻ᵀ column-major is the solve Lᵀ X = I, done by the dense kernels (blocked, or OpenBLAS): a scalar triangular
+        // inverse was the bulk of compiling a limited model with thousands of variables, bound by cache misses.
         int n = Size;
-        var result = new double[n * n];
-        var row = new double[n];
-        for (int c = 0; c < n; c++)
+        var columnMajorLower = new double[n * n];
+        for (int i = 0; i < n; i++)
         {
-            // Row c of L⁻¹ solves xᵀL = e_cᵀ, i.e. Lᵀx = e_c: back substitution, x_i = 0 for i > c.
-            Array.Clear(row);
-            row[c] = 1.0 / lower[(c * n) + c];
-            for (int i = c - 1; i >= 0; i--)
+            for (int j = 0; j <= i; j++)
             {
-                double sum = 0;
-                for (int k = i + 1; k <= c; k++)
-                {
-                    sum += lower[(k * n) + i] * row[k];
-                }
-
-                row[i] = -sum / lower[(i * n) + i];
+                columnMajorLower[(j * n) + i] = lower[(i * n) + j];
             }
-
-            row.CopyTo(result, c * n);
         }
 
+        var result = new double[n * n];
+        for (int c = 0; c < n; c++)
+        {
+            result[(c * n) + c] = 1.0;
+        }
+
+        DenseLinearAlgebra.Default.SolveLower(transpose: true, n, n, columnMajorLower, n, result, n);
         return result;
     }
 

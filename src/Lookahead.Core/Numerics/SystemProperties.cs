@@ -81,7 +81,10 @@ public static class SystemProperties
 
         try
         {
-            return NumericalRank(k.Svd(computeVectors: false).S.ToArray());
+            // K is n×nm: its singular values are those of the n×n triangle of a thin QR of Kᵀ. Taking them from the
+            // triangle keeps the work and memory at O(n²·nm) and O(n·nm); a direct SVD of K allocates its (nm)² factor.
+            var triangle = k.Transpose().QR(MathNet.Numerics.LinearAlgebra.Factorization.QRMethod.Thin).R;
+            return NumericalRank(triangle.Svd(computeVectors: false).S.ToArray());
         }
         catch (NonConvergenceException ex)
         {
