@@ -27,6 +27,7 @@ public sealed class CompiledModel
     private readonly ConstrainedProblem? constrainedWithoutPrevious;
     private readonly ConstrainedProblem? constrainedWithPrevious;
     private readonly TargetSolver? targetSolver;
+    private readonly InteriorPointProblem? interiorPoint;
 
     /// <summary>Above this Hessian condition number every plan takes refinement steps: below it, cond·ε ≲ 1e-10 and the condensed solve alone is accurate.</summary>
     internal const double RefinementCondition = 1e6;
@@ -55,6 +56,7 @@ public sealed class CompiledModel
         GainSet withPrevious,
         ConstrainedProblem? constrainedWithoutPrevious,
         ConstrainedProblem? constrainedWithPrevious,
+        InteriorPointProblem? interiorPoint,
         TargetMap targets,
         TargetSolver? targetSolver,
         ModelDiagnostics diagnostics,
@@ -63,6 +65,7 @@ public sealed class CompiledModel
     {
         this.model = model;
         this.withoutPrevious = withoutPrevious;
+        this.interiorPoint = interiorPoint;
         this.withPrevious = withPrevious;
         this.targets = targets;
         this.constrainedWithoutPrevious = constrainedWithoutPrevious;
@@ -120,6 +123,9 @@ public sealed class CompiledModel
         withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes)
         + (constrainedWithoutPrevious?.Bytes ?? 0) + (ReferenceEquals(constrainedWithPrevious, constrainedWithoutPrevious) ? 0 : constrainedWithPrevious?.Bytes ?? 0)
         + FixedOverheadBytes;
+
+    /// <summary>True when cold limited plans go to the interior-point solver first (see <see cref="ModelCompiler"/>).</summary>
+    internal bool UsesInteriorPoint => interiorPoint is not null;
 
     /// <summary>True when the model carries any input, rate or output limit.</summary>
     public bool HasLimits => constrainedWithoutPrevious is not null;
@@ -188,7 +194,7 @@ public sealed class CompiledModel
         var constrained = request.PreviousInput is null ? constrainedWithoutPrevious : constrainedWithPrevious;
         if (constrained is not null)
         {
-            var outcome = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
+            var outcome = SolveLimited(constrained, plan, request, targetState, targetInput, warmStart);
             plan.Status = outcome.Status;
             plan.Iterations = outcome.Iterations;
             plan.ActiveLimits = outcome.ActiveLimits;
@@ -288,6 +294,37 @@ public sealed class CompiledModel
         DenseKernels.Multiply(targets.StateMap, reference, targetState);
         DenseKernels.Multiply(targets.InputMap, reference, targetInput);
         return targetSolver is not null && targetSolver.Limit(reference, targetState, targetInput);
+    }
+
+    /// <summary>
+    /// One limited solve. A cold plan of a model compiled with an interior-point solver takes it first (its cost does
+    /// not grow with the number of active limits); a warm-started plan, a plan whose first move cannot reach its window,
+    /// and any interior-point result that is not a clean optimum go to the dual active-set method. Both reach the
+    /// same optimum (the tests hold them to each other and to the CVXOPT fixtures).
+    /// </summary>
+    private ConstrainedOutcome SolveLimited(ConstrainedProblem constrained, Plan plan, PlanRequest request, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, PlanWarmStart? warmStart)
+    {
+        if (warmStart is null && interiorPoint is not null && (request.PreviousInput is null || constrained.Rows.UnreachableFirstMoves(request.PreviousInput).Count == 0))
+        {
+            var unconstrained = System.Buffers.ArrayPool<double>.Shared.Rent(plan.Inputs.Length);
+            try
+            {
+                plan.Inputs.CopyTo(unconstrained, 0);
+                var outcome = InteriorPointPlanner.Solve(interiorPoint, plan.Inputs, request.State, request.PreviousInput, request.Reference, targetState, targetInput, Options.SoftLimitLinearWeight);
+                if (outcome.Status == PlanStatus.Optimal)
+                {
+                    return outcome;
+                }
+
+                unconstrained.AsSpan(0, plan.Inputs.Length).CopyTo(plan.Inputs);
+            }
+            finally
+            {
+                System.Buffers.ArrayPool<double>.Shared.Return(unconstrained);
+            }
+        }
+
+        return constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
     }
 
     /// <summary>The warm start's own workspace for this variant, made on first use; null without a warm start.</summary>

@@ -14,6 +14,14 @@ public static class ModelCompiler
         "is too small next to the rest of the cost: the condensed Hessian is not numerically positive definite " +
         "(some input directions move the outputs too little to be told apart), so the plan is not unique in double precision — raise the input weight";
 
+    /// <summary>
+    /// Largest n + m whose cold limited plans go to the interior-point solver when rate or soft output limits are
+    /// present: there its iteration count (about 12) beats the active set's one iteration per active limit (measured on
+    /// the demo, n + m = 6: 2.6× faster median, 5× faster 99th percentile). Larger states, or input bounds alone (M1,
+    /// n + m = 15), favour the active set, whose iterations cost less there.
+    /// </summary>
+    internal const int InteriorPointUpTo = 12;
+
     /// <summary>Compiles <paramref name="document"/>.</summary>
     /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
     public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null) =>
@@ -64,6 +72,7 @@ public static class ModelCompiler
         var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight));
         ConstrainedProblem? constrainedWithout = null;
         ConstrainedProblem? constrainedWith = null;
+        InteriorPointProblem? interiorPoint = null;
         TargetSolver? targetSolver = null;
         if (model.Limits.Any)
         {
@@ -75,6 +84,11 @@ public static class ModelCompiler
 
             constrainedWithout = new ConstrainedProblem(model, a, b, withoutPrevious);
             constrainedWith = ReferenceEquals(withPrevious, withoutPrevious) ? constrainedWithout : new ConstrainedProblem(model, a, b, withPrevious);
+            if ((model.Limits.HasRateBounds || model.Limits.HasOutputBounds) && model.StateCount + model.InputCount <= InteriorPointUpTo)
+            {
+                int cap = Math.Min(options.MaxSolverIterations ?? InteriorPointProblem.DefaultMaxIterations, InteriorPointProblem.DefaultMaxIterations);
+                interiorPoint = new InteriorPointProblem(model, a, b, terminal, cap);
+            }
             if (model.Limits.HasInputBounds)
             {
                 targetSolver = Guarded("cost.outputWeight", "the limited steady-state targets could not be prepared", () => new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits));
@@ -125,7 +139,7 @@ public static class ModelCompiler
 
         var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);
         var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
-        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, targets, targetSolver, diagnostics, gain, options);
+        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options);
     }
 
     /// <summary>Discretises a continuous plant, naming the field when the hold is out of range.</summary>
