@@ -48,7 +48,7 @@ public class WarmStartTests
             }
 
             var request = new PlanRequest((double[])x.Clone(), reference, (double[])previous.Clone());
-            var cold = model.Plan(request);
+            var cold = model.Plan(request, model.CreateWarmStart()); // a fresh warm start: the active set from cold
             var hot = model.Plan(request, warm);
             AssertSamePlan(cold, hot, $"step {step}");
             warmIterations += hot.Iterations;
@@ -80,7 +80,7 @@ public class WarmStartTests
             double[]? previous = i % 3 == 0 ? null : Enumerable.Range(0, 3).Select(_ => random.NextDouble() * 1.6 - 0.3).ToArray();
             double[]? reference = i % 4 == 0 ? TestModels.RandomVector(random, 3, 1.5) : null;
             var request = new PlanRequest(state, reference, previous);
-            var cold = model.Plan(request);
+            var cold = model.Plan(request, model.CreateWarmStart()); // a fresh warm start: the active set from cold
             var hot = model.Plan(request, warm);
             AssertSamePlan(cold, hot, $"state {i}");
         }
