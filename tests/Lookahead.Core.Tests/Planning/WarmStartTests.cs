@@ -1,4 +1,3 @@
-using Lookahead.Core.Models;
 using Lookahead.Core.Planning;
 using Lookahead.Core.Tests.Support;
 using Xunit;
@@ -11,24 +10,8 @@ namespace Lookahead.Core.Tests.Planning;
 /// </summary>
 public class WarmStartTests
 {
-    /// <summary>The cold-store demo's plant (continuous, 60 s sample time) with all its limits.</summary>
-    internal static CompiledModel ColdStore() => ModelCompiler.Compile(new ModelDocument(
-        "cold-store",
-        new PlantSpec(
-            [[-0.000417, 0.000139, 0.0], [0.000139, -0.000556, 0.000139], [0.0, 0.000139, -0.000417]],
-            [[-0.0012, 0.0, 0.0009], [-0.0005, -0.0004, 0.0002], [0.0, -0.0014, 0.0]],
-            null,
-            60,
-            TimeDomain.Continuous),
-        new CostSpec(30, WeightSpec.FromDiagonal([1.0, 1.0, 1.0]), WeightSpec.FromDiagonal([0.05, 0.05, 0.02]), WeightSpec.FromDiagonal([0.5, 0.5, 0.2]), TerminalWeightSpec.Riccati),
-        new LimitsSpec(
-            InputMin: [0.0, 0.0, 0.0],
-            InputMax: [1.0, 1.0, 1.0],
-            InputRateMin: [-0.2, -0.2, -0.5],
-            InputRateMax: [0.2, 0.2, 0.5],
-            OutputMin: [-3.0, -3.0, -3.0],
-            OutputMax: [2.0, 2.0, 2.0],
-            OutputViolationWeight: [100.0, 100.0, 100.0])));
+    /// <summary>The cold-store demo (the service's own demo document) with all its limits.</summary>
+    internal static CompiledModel ColdStore() => ModelCompiler.Compile(DemoModel.Document);
 
     [Fact]
     public void WarmPlansAlongAClosedLoopEqualColdPlans()
