@@ -37,13 +37,21 @@ public sealed class DualActiveSetSolver
 
     private readonly CholeskyFactor factor;
     private readonly double[] initialJ;
+    private readonly PrimalDualActiveSet? guesser;
     private readonly int[] singletonColumn;
     private readonly double[] singletonValue;
 
     /// <param name="factor">G = LLᵀ.</param>
     /// <param name="constraints">Normals n_j, one row each; equalities first.</param>
     /// <param name="equalityCount">How many leading rows are equalities.</param>
-    public DualActiveSetSolver(CholeskyFactor factor, SparseRows constraints, int equalityCount)
+    /// <param name="guessActiveSets">
+    /// Try cold starts first by <see cref="PrimalDualActiveSet"/>, which changes many rows per iteration — for programs
+    /// whose rows are all bounds on single variables (input limits only), without equalities and with at most
+    /// <see cref="PrimalDualActiveSet.MaxRows"/> rows. The optimum is the same. With general rows (rate and output
+    /// limits) its guesses were measured to cycle on the demo and the reference cases, costing more than they saved.
+    /// </param>
+    /// <param name="maxGuesses">The guesser's cap before the dual active-set method takes over.</param>
+    public DualActiveSetSolver(CholeskyFactor factor, SparseRows constraints, int equalityCount, bool guessActiveSets = false, int maxGuesses = PrimalDualActiveSet.MaxIterations)
     {
         if (constraints.ColumnCount != factor.Size)
         {
@@ -69,7 +77,18 @@ public sealed class DualActiveSetSolver
             singletonColumn[row] = constraints.IsSingleton(row) ? constraints.ColumnsOf(row)[0] : -1;
             singletonValue[row] = constraints.IsSingleton(row) ? constraints.ValuesOf(row)[0] : 0;
         }
+
+        if (guessActiveSets && equalityCount == 0 && constraints.RowCount <= PrimalDualActiveSet.MaxRows && singletonColumn.All(column => column >= 0))
+        {
+            guesser = new PrimalDualActiveSet(constraints, initialJ, maxGuesses);
+        }
     }
+
+    /// <summary>Whether cold starts are first tried by <see cref="PrimalDualActiveSet"/>.</summary>
+    public bool GuessesActiveSets => guesser is not null;
+
+    /// <summary>Memory held beyond J₀: the guesser's S and directions, when there is one.</summary>
+    public long GuessBytes => guesser?.Bytes ?? 0;
 
     public int Variables => factor.Size;
 
@@ -93,13 +112,15 @@ public sealed class DualActiveSetSolver
     /// </param>
     public QpResult Solve(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace, bool warmStart = false)
     {
-        var result = SolveFrom(linear, rhs, x, unconstrained, maxIterations, workspace, warmStart);
-        workspace.FactoredCount = result.ActiveCount;
+        var result = SolveFrom(linear, rhs, x, unconstrained, maxIterations, workspace, warmStart, out bool factored);
+        workspace.FactoredCount = factored ? result.ActiveCount : -1;
+        workspace.LastActiveCount = result.ActiveCount;
         return result;
     }
 
-    private QpResult SolveFrom(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace, bool warmStart)
+    private QpResult SolveFrom(ReadOnlySpan<double> linear, ReadOnlySpan<double> rhs, Span<double> x, bool unconstrained, int maxIterations, QpWorkspace workspace, bool warmStart, out bool factored)
     {
+        factored = true;
         int n = Variables;
         int m = Constraints.RowCount;
         if (rhs.Length != m || x.Length != n || (!unconstrained && linear.Length != n) || workspace.Variables != n || workspace.Constraints != m)
@@ -143,6 +164,19 @@ public sealed class DualActiveSetSolver
         }
         else
         {
+            if (guesser is not null)
+            {
+                // A warm start whose last set was found by the guesser (so never factored) guesses from that set.
+                var guess = warmStart && workspace.FactoredCount < 0 ? workspace.Active.AsSpan(0, workspace.LastActiveCount) : default;
+                if (guesser.TrySolve(rhs, x, guess, workspace, out int count, out int guesses))
+                {
+                    factored = false;
+                    return new QpResult(QpStatus.Optimal, guesses, count, -1);
+                }
+
+                iterations = guesses;
+            }
+
             workspace.WarmChain = 0;
             initialJ.CopyTo(j);
         }

@@ -53,6 +53,12 @@ public sealed class QpWorkspace
     /// </summary>
     internal int FactoredCount { get; set; } = -1;
 
+    /// <summary>Size of the active set the last solve ended with (factored or found by the guesser).</summary>
+    internal int LastActiveCount { get; set; }
+
+    /// <summary>The guesser's scratch, made on its first use (<see cref="PrimalDualActiveSet"/>).</summary>
+    internal ActiveSetGuessScratch? ActiveSetGuess { get; set; }
+
     /// <summary>Warm starts in a row since J was last rebuilt from J₀ (rounding accumulates in the updates).</summary>
     internal int WarmChain { get; set; }
 

