@@ -46,14 +46,16 @@ public static class DemoRatios
         var limited = ModelCompiler.Compile(Demo());
         var free = ModelCompiler.Compile(Demo() with { Limits = null });
         var requests = SeededStates();
-        for (int round = 0; round < WarmUpRounds; round++)
-        {
-            foreach (var request in requests)
+        JitWarmUp.Run(
+            () =>
             {
-                limited.Plan(request);
-                free.Plan(request);
-            }
-        }
+                foreach (var request in requests)
+                {
+                    limited.Plan(request);
+                    free.Plan(request);
+                }
+            },
+            WarmUpRounds);
 
         var limitedTimes = new double[requests.Count];
         var freeTimes = new double[requests.Count];

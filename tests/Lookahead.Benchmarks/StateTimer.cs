@@ -12,7 +12,7 @@ namespace Lookahead.Benchmarks;
 /// </summary>
 public static class StateTimer
 {
-    /// <summary>Enough calls for tiered compilation to settle on the optimised code of every path timed.</summary>
+    /// <summary>Calls of each plan before timing, at the least (see <see cref="JitWarmUp"/>).</summary>
     private const int WarmUpRounds = 300;
 
     public static int Run(string path, TextWriter output)
@@ -25,12 +25,15 @@ public static class StateTimer
 
         var limited = ModelCompiler.Compile(BenchmarkModels.Get(name).Document);
         var free = ModelCompiler.Compile(limited.Document with { Limits = null });
-        for (int i = 0; i < WarmUpRounds; i++)
-        {
-            var x0 = states[i % states.Length];
-            limited.Plan(new PlanRequest(x0));
-            free.Plan(new PlanRequest(x0));
-        }
+        int next = 0;
+        JitWarmUp.Run(
+            () =>
+            {
+                var x0 = states[next++ % states.Length];
+                limited.Plan(new PlanRequest(x0));
+                free.Plan(new PlanRequest(x0));
+            },
+            WarmUpRounds);
 
         var limitedTimes = new double[states.Length];
         var freeTimes = new double[states.Length];
