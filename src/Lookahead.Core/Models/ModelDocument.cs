@@ -5,12 +5,21 @@ namespace Lookahead.Core.Models;
 /// <see cref="Validation.ModelValidator"/> checks it and <see cref="Planning.ModelCompiler"/> compiles it.
 /// Matrices are arrays of rows.
 /// </summary>
+/// <param name="OperatingPoint">
+/// The engineering values at which the model was linearised. The model itself stays in deviations from them; with an
+/// operating point every value a client sends or receives (states, references, previous inputs, limits, targets,
+/// trajectories) is in engineering units. Null: everything is in the model's own (deviation) units.
+/// </param>
 public sealed record ModelDocument(
     string? Name,
     PlantSpec Plant,
     CostSpec Cost,
     LimitsSpec? Limits = null,
-    LabelsSpec? Labels = null);
+    LabelsSpec? Labels = null,
+    OperatingPointSpec? OperatingPoint = null);
+
+/// <summary>Engineering values of the states (n), inputs (m) and outputs (p) at the operating point; a missing part is zero.</summary>
+public sealed record OperatingPointSpec(double[]? State = null, double[]? Input = null, double[]? Output = null);
 
 /// <summary>Whether <see cref="PlantSpec.A"/> and <see cref="PlantSpec.B"/> describe x' = Ax + Bu or x(k+1) = Ax(k) + Bu(k).</summary>
 public enum TimeDomain
@@ -102,5 +111,8 @@ public sealed record LimitsSpec(
     double?[]? OutputMax = null,
     double[]? OutputViolationWeight = null);
 
-/// <summary>Human names for states, inputs and outputs, used by CSV replay and charts.</summary>
-public sealed record LabelsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null);
+/// <summary>Human names for states, inputs and outputs, used by CSV replay and charts, and their units.</summary>
+public sealed record LabelsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null, UnitsSpec? Units = null);
+
+/// <summary>Free-text units (°C, %, bar) per state, input and output, shown on chart axes and in the model's details.</summary>
+public sealed record UnitsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null);

@@ -13,10 +13,51 @@ public static class ClosedLoopSimulator
     /// <summary>Disturbance rows stop being checked once this many errors are listed: a long bad array has said enough by then.</summary>
     private const int MaxListedErrors = 20;
 
+    /// <summary>
+    /// Runs the loop. With an operating point the request and the result are in engineering units (like a plan's);
+    /// the loop itself runs in deviations, where the true plant's disturbances w_k add as given.
+    /// </summary>
     /// <exception cref="ModelValidationException">A field of the request is invalid.</exception>
     public static SimulationResult Simulate(CompiledModel model, SimulationRequest request)
     {
         var (trueA, trueB) = Validate(model, request);
+        var point = model.OperatingPoint;
+        var result = SimulateInDeviations(model, ToDeviations(request, point), trueA, trueB);
+        if (!point.IsOrigin)
+        {
+            foreach (var row in result.States)
+            {
+                OperatingPoint.AddRows(row, point.State);
+            }
+
+            foreach (var row in result.Inputs)
+            {
+                OperatingPoint.AddRows(row, point.Input);
+            }
+
+            foreach (var row in result.Outputs)
+            {
+                OperatingPoint.AddRows(row, point.Output);
+            }
+
+            foreach (var row in result.References ?? [])
+            {
+                OperatingPoint.AddRows(row, point.Output);
+            }
+        }
+
+        return result;
+    }
+
+    private static SimulationRequest ToDeviations(SimulationRequest request, OperatingPoint point) => point.IsOrigin ? request : request with
+    {
+        InitialState = OperatingPoint.Minus(request.InitialState, point.State)!,
+        PreviousInput = OperatingPoint.Minus(request.PreviousInput, point.Input),
+        References = request.References?.Select(change => change with { Reference = OperatingPoint.Minus(change.Reference, point.Output)! }).ToList(),
+    };
+
+    private static SimulationResult SimulateInDeviations(CompiledModel model, SimulationRequest request, double[] trueA, double[] trueB)
+    {
         int n = model.StateCount;
         int m = model.InputCount;
         int p = model.OutputCount;
@@ -45,7 +86,7 @@ public static class ClosedLoopSimulator
             }
 
             double[]? reference = scheduleIndex >= 0 ? schedule[scheduleIndex].Reference : null;
-            var plan = model.Plan(new PlanRequest(states[k], reference, previous), warmStart);
+            var plan = model.PlanInDeviations(new PlanRequest(states[k], reference, previous), warmStart);
             if (plan.Status != PlanStatus.Optimal)
             {
                 nonOptimal++;

@@ -95,6 +95,12 @@ public sealed class CompiledModel
 
     public double SampleTime => model.SampleTime;
 
+    /// <summary>
+    /// The engineering values the model was linearised at (zeros without one). <see cref="Plan(PlanRequest, PlanWarmStart?)"/>
+    /// and <see cref="FirstMove"/> take and give engineering units; everything else here is in deviations.
+    /// </summary>
+    public OperatingPoint OperatingPoint => model.OperatingPoint;
+
     /// <summary>A after zero-order hold (or as given for a discrete plant), as rows.</summary>
     public double[][] DiscreteA { get; }
 
@@ -155,10 +161,21 @@ public sealed class CompiledModel
     /// <summary>A carrier for plans of consecutive states of this model (see <see cref="PlanWarmStart"/>).</summary>
     public PlanWarmStart CreateWarmStart() => new(this);
 
-    /// <summary>The optimal plan for one measured state.</summary>
+    /// <summary>
+    /// The optimal plan for one measured state, in engineering units when the model has an operating point (the
+    /// request's state, reference and previous input, and the plan's trajectories and target); J is the same in both.
+    /// </summary>
     /// <param name="warmStart">When given, a limited plan starts from the active set of the previous plan made with it.</param>
     /// <exception cref="ModelValidationException">A vector has the wrong length or a non-finite entry.</exception>
     public Plan Plan(PlanRequest request, PlanWarmStart? warmStart = null)
+    {
+        var plan = PlanInDeviations(OperatingPoint.ToDeviations(request), warmStart);
+        OperatingPoint.ToEngineering(plan);
+        return plan;
+    }
+
+    /// <summary>The plan with every vector in deviations from the operating point (the closed-loop simulator's units).</summary>
+    internal Plan PlanInDeviations(PlanRequest request, PlanWarmStart? warmStart = null)
     {
         if (warmStart is not null && !ReferenceEquals(warmStart.Model, this))
         {
@@ -245,6 +262,17 @@ public sealed class CompiledModel
     /// <param name="warmStart">As for <see cref="Plan(PlanRequest, PlanWarmStart?)"/>.</param>
     public FirstMoveResult FirstMove(PlanRequest request, Span<double> firstMove, PlanWarmStart? warmStart = null)
     {
+        var result = FirstMoveInDeviations(OperatingPoint.ToDeviations(request), firstMove, warmStart);
+        if (firstMove.Length == InputCount)
+        {
+            OperatingPoint.AddRows(firstMove, OperatingPoint.Input);
+        }
+
+        return result;
+    }
+
+    private FirstMoveResult FirstMoveInDeviations(PlanRequest request, Span<double> firstMove, PlanWarmStart? warmStart)
+    {
         if (firstMove.Length != InputCount)
         {
             throw new ArgumentException($"firstMove has {firstMove.Length} entries; expected {InputCount}", nameof(firstMove));
@@ -252,7 +280,7 @@ public sealed class CompiledModel
 
         if (HasLimits || refine || !IsWellFormed(request))
         {
-            var plan = Plan(request, warmStart);
+            var plan = PlanInDeviations(request, warmStart);
             plan.Input(0).CopyTo(firstMove);
             return new FirstMoveResult(plan.Status, plan.Cost, plan.Warnings);
         }

@@ -1,4 +1,5 @@
 using Lookahead.Core.Models;
+using Lookahead.Core.Planning;
 using Lookahead.Core.Numerics;
 using MathNet.Numerics;
 using MathNet.Numerics.LinearAlgebra;
@@ -173,6 +174,7 @@ public static class ModelValidator
             }
         }
 
+        var operatingPoint = CheckOperatingPoint(document.OperatingPoint, n, m, p, errors);
         var validatedLimits = CheckLimits(document.Limits, m, p, errors);
         CheckLabels(document.Labels, n, m, p, errors);
         if (errors.Count > 0)
@@ -211,7 +213,7 @@ public static class ModelValidator
             return null;
         }
 
-        return new ValidatedModel(document, a, b, c, plant.C is null, plant.SampleTime, plant.TimeDomain, horizon, q, r, s, terminal.Kind, pTerminal, validatedLimits!);
+        return new ValidatedModel(document, a, b, c, plant.C is null, plant.SampleTime, plant.TimeDomain, horizon, q, r, s, terminal.Kind, pTerminal, validatedLimits!.InDeviations(operatingPoint), operatingPoint);
     }
 
     private static int RowCount(double[][]? rows, string path, List<ValidationError> errors)
@@ -553,6 +555,73 @@ public static class ModelValidator
         CheckNames(labels.States, "labels.states", n, errors);
         CheckNames(labels.Inputs, "labels.inputs", m, errors);
         CheckNames(labels.Outputs, "labels.outputs", p, errors);
+        if (labels.Units is { } units)
+        {
+            CheckUnits(units.States, "labels.units.states", n, errors);
+            CheckUnits(units.Inputs, "labels.units.inputs", m, errors);
+            CheckUnits(units.Outputs, "labels.units.outputs", p, errors);
+        }
+    }
+
+    /// <summary>Units are free text and may repeat (three zones all in °C); an empty string means "no unit".</summary>
+    private static void CheckUnits(string[]? units, string path, int size, List<ValidationError> errors)
+    {
+        if (units is null)
+        {
+            return;
+        }
+
+        if (units.Length != size)
+        {
+            errors.Add(new(path, $"has {units.Length} units; expected {size}"));
+            return;
+        }
+
+        for (int i = 0; i < units.Length; i++)
+        {
+            if (units[i] is null || units[i].Length > MaxLabelLength)
+            {
+                errors.Add(new($"{path}[{i}]", $"must be a text of at most {MaxLabelLength} characters (empty for none)"));
+            }
+        }
+    }
+
+    /// <summary>The operating point with missing parts as zeros; every given entry finite and within <see cref="MaxMagnitude"/>.</summary>
+    private static OperatingPoint CheckOperatingPoint(OperatingPointSpec? spec, int n, int m, int p, List<ValidationError> errors)
+    {
+        if (spec is null)
+        {
+            return OperatingPoint.Origin(n, m, p);
+        }
+
+        return new OperatingPoint(
+            OperatingValues(spec.State, "operatingPoint.state", n, errors),
+            OperatingValues(spec.Input, "operatingPoint.input", m, errors),
+            OperatingValues(spec.Output, "operatingPoint.output", p, errors));
+    }
+
+    private static double[] OperatingValues(double[]? given, string path, int size, List<ValidationError> errors)
+    {
+        if (given is null)
+        {
+            return new double[size];
+        }
+
+        if (given.Length != size)
+        {
+            errors.Add(new(path, $"has {given.Length} entries; expected {size}"));
+            return new double[size];
+        }
+
+        for (int i = 0; i < size; i++)
+        {
+            if (!double.IsFinite(given[i]) || Math.Abs(given[i]) > MaxMagnitude)
+            {
+                errors.Add(new($"{path}[{i}]", $"must be a finite number of magnitude at most {MaxMagnitude:g3}"));
+            }
+        }
+
+        return (double[])given.Clone();
     }
 
     private static void CheckNames(string[]? names, string path, int size, List<ValidationError> errors)

@@ -1,11 +1,13 @@
 using Lookahead.Core.Models;
+using Lookahead.Core.Planning;
 using MathNet.Numerics.LinearAlgebra;
 
 namespace Lookahead.Core.Validation;
 
 /// <summary>
 /// A model whose shapes, numbers and definiteness have been checked, as dense matrices.
-/// A and B are still in the document's time domain; weights are symmetrised.
+/// A and B are still in the document's time domain; weights are symmetrised; limits are in deviations from the
+/// <see cref="OperatingPoint"/> (the document's, in engineering units, shifted by it).
 /// </summary>
 internal sealed record ValidatedModel(
     ModelDocument Document,
@@ -21,7 +23,8 @@ internal sealed record ValidatedModel(
     Matrix<double> InputRateWeight,
     TerminalWeightKind TerminalKind,
     Matrix<double>? TerminalMatrix,
-    ValidatedLimits Limits)
+    ValidatedLimits Limits,
+    OperatingPoint OperatingPoint)
 {
     public int StateCount => A.RowCount;
 
@@ -41,6 +44,27 @@ internal sealed record ValidatedLimits(
     double[] OutputViolationWeight)
 {
     public bool HasInputBounds => InputMin.Any(double.IsFinite) || InputMax.Any(double.IsFinite);
+
+    /// <summary>Input and output limits as deviations from <paramref name="point"/>; rate limits are differences and stay.</summary>
+    public ValidatedLimits InDeviations(OperatingPoint point) => point.IsOrigin ? this : this with
+    {
+        InputMin = Shift(InputMin, point.Input),
+        InputMax = Shift(InputMax, point.Input),
+        OutputMin = Shift(OutputMin, point.Output),
+        OutputMax = Shift(OutputMax, point.Output),
+    };
+
+    private static double[] Shift(double[] bounds, double[] offset)
+    {
+        var shifted = new double[bounds.Length];
+        for (int i = 0; i < bounds.Length; i++)
+        {
+            // ±∞ (unbounded) stays unbounded.
+            shifted[i] = double.IsFinite(bounds[i]) ? bounds[i] - offset[i] : bounds[i];
+        }
+
+        return shifted;
+    }
 
     public bool HasRateBounds => InputRateMin.Any(double.IsFinite) || InputRateMax.Any(double.IsFinite);
 
