@@ -3,12 +3,21 @@ using System.Text.Json.Serialization;
 namespace Lookahead.Api.Catalog;
 
 /// <summary>A plant-and-cost model as sent by a client. Every field is optional here so that a missing one is reported by path, not by the parser.</summary>
+/// <param name="OperatingPoint">Engineering values the model was linearised at; with it, every value sent or received is in engineering units.</param>
 public sealed record ModelDocumentDto(
     string? Name,
     PlantDto? Plant,
     CostDto? Cost,
     LimitsDto? Limits,
-    LabelsDto? Labels);
+    LabelsDto? Labels,
+    OperatingPointDto? OperatingPoint = null);
+
+/// <summary>x_op (n), u_op (m), y_op (p) in engineering units; a missing part is zero.</summary>
+public sealed record OperatingPointDto(double[]? State, double[]? Input, double[]? Output)
+{
+    [JsonIgnore]
+    public bool IsEmpty => State is null && Input is null && Output is null;
+}
 
 /// <summary>x(k+1) = A x(k) + B u(k) (or x' = Ax + Bu when continuous), y = C x. Matrices are arrays of rows.</summary>
 public sealed record PlantDto(
@@ -40,7 +49,14 @@ public sealed record LimitsDto(
         && OutputMin is null && OutputMax is null && OutputViolationWeight is null;
 }
 
-public sealed record LabelsDto(string[]? States, string[]? Inputs, string[]? Outputs)
+public sealed record LabelsDto(string[]? States, string[]? Inputs, string[]? Outputs, UnitsDto? Units = null)
+{
+    [JsonIgnore]
+    public bool IsEmpty => States is null && Inputs is null && Outputs is null && Units is null;
+}
+
+/// <summary>Free-text units per state, input and output (°C, %, bar), shown on chart axes and in the model's details.</summary>
+public sealed record UnitsDto(string[]? States, string[]? Inputs, string[]? Outputs)
 {
     [JsonIgnore]
     public bool IsEmpty => States is null && Inputs is null && Outputs is null;

@@ -14,8 +14,16 @@ public static class ModelDocumentMapping
     {
         Cost = dto.Cost is null ? null : dto.Cost with { TerminalWeight = dto.Cost.TerminalWeight ?? TerminalWeightDto.Riccati },
         Limits = dto.Limits is { IsEmpty: true } ? null : dto.Limits,
-        Labels = dto.Labels is { IsEmpty: true } ? null : dto.Labels,
+        Labels = NormaliseLabels(dto.Labels),
+        OperatingPoint = dto.OperatingPoint is { IsEmpty: true } ? null : dto.OperatingPoint,
     };
+
+    /// <summary>Empty units and then empty labels become absent, so that they hash like documents without them.</summary>
+    private static LabelsDto? NormaliseLabels(LabelsDto? labels)
+    {
+        var withUnits = labels is null ? null : labels with { Units = labels.Units is { IsEmpty: true } ? null : labels.Units };
+        return withUnits is { IsEmpty: true } ? null : withUnits;
+    }
 
     public static ModelDocument ToCore(ModelDocumentDto dto, List<ValidationError> errors)
     {
@@ -50,8 +58,11 @@ public static class ModelDocumentMapping
         LimitsSpec? limits = dto.Limits is { } l
             ? new LimitsSpec(l.InputMin, l.InputMax, l.InputRateMin, l.InputRateMax, l.OutputMin, l.OutputMax, l.OutputViolationWeight)
             : null;
-        LabelsSpec? labels = dto.Labels is { } names ? new LabelsSpec(names.States, names.Inputs, names.Outputs) : null;
-        return new ModelDocument(dto.Name, plant, cost, limits, labels);
+        LabelsSpec? labels = dto.Labels is { } names
+            ? new LabelsSpec(names.States, names.Inputs, names.Outputs, names.Units is { } units ? new UnitsSpec(units.States, units.Inputs, units.Outputs) : null)
+            : null;
+        var point = dto.OperatingPoint is { } op ? new OperatingPointSpec(op.State, op.Input, op.Output) : null;
+        return new ModelDocument(dto.Name, plant, cost, limits, labels, point);
     }
 
     public static TimeDomain ParseTimeDomain(string? value, string path, List<ValidationError> errors)

@@ -52,8 +52,8 @@ public static class TrajectoryChart
             title,
             $"time ({labels.TimeUnit})",
             [
-                new ChartPanel("Outputs", "output", outputSeries),
-                new ChartPanel("Inputs (held between samples)", "input", inputSeries),
+                new ChartPanel("Outputs", labels.OutputAxis, outputSeries),
+                new ChartPanel("Inputs (held between samples)", labels.InputAxis, inputSeries),
             ]);
     }
 
