@@ -52,6 +52,10 @@ public static class WarningText
             : "infeasible: the hard limits contradict each other; the inputs were moved onto the hard input and rate limits",
         WarningCode.SoftOutputLimitExceeded =>
             $"the predicted outputs exceed their soft limits by up to {G(w.Amount)} (output {w.Output}, step {w.Step}): the hard limits leave no plan that respects them",
+        WarningCode.DisturbanceNotBalanced =>
+            $"no steady state balances the measured disturbance's last row; the plan steers to the least-squares one, off by {G(w.Amount)} at worst in x = Ax + Bu + Ev",
+        WarningCode.DisturbanceTargetOutsideInputLimits =>
+            $"holding the setpoint against the measured disturbance needs inputs up to {G(w.Amount)} beyond their limits; the plan respects the limits and steers toward that steady state, which it cannot reach",
         WarningCode.StepsNotOptimal =>
             $"{w.Count} steps did not reach a clean optimum",
         WarningCode.ClosedLoopUnstable =>

@@ -38,6 +38,8 @@ public static class WireNames
         WarningCode.NotControllable => "not-controllable",
         WarningCode.ModeUnseenByCost => "mode-unseen-by-cost",
         WarningCode.HessianIllConditioned => "hessian-ill-conditioned",
+        WarningCode.DisturbanceNotBalanced => "disturbance-not-balanced",
+        WarningCode.DisturbanceTargetOutsideInputLimits => "disturbance-target-outside-input-limits",
         _ => throw new ArgumentOutOfRangeException(nameof(code), code, "no wire name"),
     };
 }

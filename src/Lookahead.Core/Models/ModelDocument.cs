@@ -18,8 +18,8 @@ public sealed record ModelDocument(
     LabelsSpec? Labels = null,
     OperatingPointSpec? OperatingPoint = null);
 
-/// <summary>Engineering values of the states (n), inputs (m) and outputs (p) at the operating point; a missing part is zero.</summary>
-public sealed record OperatingPointSpec(double[]? State = null, double[]? Input = null, double[]? Output = null);
+/// <summary>Engineering values of the states (n), inputs (m), outputs (p) and measured disturbances (q) at the operating point; a missing part is zero.</summary>
+public sealed record OperatingPointSpec(double[]? State = null, double[]? Input = null, double[]? Output = null, double[]? Disturbance = null);
 
 /// <summary>Whether <see cref="PlantSpec.A"/> and <see cref="PlantSpec.B"/> describe x' = Ax + Bu or x(k+1) = Ax(k) + Bu(k).</summary>
 public enum TimeDomain
@@ -33,13 +33,18 @@ public enum TimeDomain
 /// <param name="B">n×m input matrix.</param>
 /// <param name="C">p×n output matrix; null means the identity (outputs are the states).</param>
 /// <param name="SampleTime">Seconds between moves, &gt; 0.</param>
-/// <param name="TimeDomain">How to read A and B.</param>
+/// <param name="TimeDomain">How to read A, B and E.</param>
+/// <param name="E">
+/// n×q: measured disturbances v (outdoor temperature, throughput) with x(k+1) = A x + B u + E v; a continuous plant
+/// holds B and E together. Null: no measured disturbances.
+/// </param>
 public sealed record PlantSpec(
     double[][] A,
     double[][] B,
     double[][]? C,
     double SampleTime,
-    TimeDomain TimeDomain = TimeDomain.Discrete);
+    TimeDomain TimeDomain = TimeDomain.Discrete,
+    double[][]? E = null);
 
 /// <summary>The quadratic cost over the horizon; see <see cref="Planning.CompiledModel"/> for the formula.</summary>
 /// <param name="Horizon">Number of moves N, ≥ 1.</param>
@@ -112,7 +117,7 @@ public sealed record LimitsSpec(
     double[]? OutputViolationWeight = null);
 
 /// <summary>Human names for states, inputs and outputs, used by CSV replay and charts, and their units.</summary>
-public sealed record LabelsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null, UnitsSpec? Units = null);
+public sealed record LabelsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null, UnitsSpec? Units = null, string[]? Disturbances = null);
 
 /// <summary>Free-text units (°C, %, bar) per state, input and output, shown on chart axes and in the model's details.</summary>
-public sealed record UnitsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null);
+public sealed record UnitsSpec(string[]? States = null, string[]? Inputs = null, string[]? Outputs = null, string[]? Disturbances = null);

@@ -16,7 +16,7 @@ namespace Lookahead.Core.Planning;
 /// (<see cref="Planning.Plan.SoftLimitPenalty"/>), never inside it.
 /// Immutable and safe to share between threads: every plan works on its own result and stack space.
 /// </summary>
-public sealed class CompiledModel
+public sealed partial class CompiledModel
 {
     private readonly ValidatedModel model;
     private readonly GainSet withoutPrevious;
@@ -28,6 +28,8 @@ public sealed class CompiledModel
     private readonly ConstrainedProblem? constrainedWithPrevious;
     private readonly TargetSolver? targetSolver;
     private readonly InteriorPointProblem? interiorPoint;
+    private double[][] discreteE = [];
+    private double[] eColumnMajor = [];
 
     /// <summary>Above this Hessian condition number every plan takes refinement steps: below it, cond·ε ≲ 1e-10 and the condensed solve alone is accurate.</summary>
     internal const double RefinementCondition = 1e6;
@@ -107,6 +109,22 @@ public sealed class CompiledModel
     /// <summary>B after zero-order hold (or as given for a discrete plant), as rows.</summary>
     public double[][] DiscreteB { get; }
 
+    /// <summary>E after zero-order hold together with B (or as given), as rows of q; q = 0 without measured disturbances.</summary>
+    public double[][] DiscreteE => discreteE;
+
+    /// <summary>The discrete E (n×q) the compiler hands over.</summary>
+    internal Matrix<double> DisturbanceInput
+    {
+        init
+        {
+            discreteE = Enumerable.Range(0, value.RowCount).Select(i => Enumerable.Range(0, value.ColumnCount).Select(j => value[i, j]).ToArray()).ToArray();
+            eColumnMajor = value.ToColumnMajorArray();
+        }
+    }
+
+    /// <summary>q, the measured disturbances the model takes.</summary>
+    public int DisturbanceCount => model.DisturbanceCount;
+
     /// <summary>The terminal weight P actually used.</summary>
     public double[][] TerminalWeight { get; }
 
@@ -155,6 +173,20 @@ public sealed class CompiledModel
         CheckVector(request.State, "state", StateCount, required: true, errors);
         CheckVector(request.Reference, "reference", OutputCount, required: false, errors);
         CheckVector(request.PreviousInput, "previousInput", InputCount, required: false, errors);
+        CheckRows(request.ReferenceSchedule, "reference", OutputCount, Horizon, errors);
+        if (request.Reference is not null && request.ReferenceSchedule is not null)
+        {
+            errors.Add(new("reference", "give one setpoint or a schedule, not both"));
+        }
+
+        if (request.Disturbance is not null && DisturbanceCount == 0)
+        {
+            errors.Add(new("disturbance", "the model has no measured disturbances (plant.e)"));
+        }
+        else
+        {
+            CheckRows(request.Disturbance, "disturbance", DisturbanceCount, Horizon, errors);
+        }
         return errors;
     }
 
@@ -177,6 +209,11 @@ public sealed class CompiledModel
     /// <summary>The plan with every vector in deviations from the operating point (the closed-loop simulator's units).</summary>
     internal Plan PlanInDeviations(PlanRequest request, PlanWarmStart? warmStart = null)
     {
+        if (request.HasPreview)
+        {
+            return PlanWithPreview(request, warmStart);
+        }
+
         if (warmStart is not null && !ReferenceEquals(warmStart.Model, this))
         {
             throw new ArgumentException("the warm start belongs to another model", nameof(warmStart));
@@ -278,7 +315,7 @@ public sealed class CompiledModel
             throw new ArgumentException($"firstMove has {firstMove.Length} entries; expected {InputCount}", nameof(firstMove));
         }
 
-        if (HasLimits || refine || !IsWellFormed(request))
+        if (HasLimits || refine || request.HasPreview || !IsWellFormed(request))
         {
             var plan = PlanInDeviations(request, warmStart);
             plan.Input(0).CopyTo(firstMove);
@@ -378,7 +415,31 @@ public sealed class CompiledModel
     {
         static bool Ok(double[]? v, int size, bool required) =>
             v is null ? !required : v.Length == size && Array.TrueForAll(v, double.IsFinite);
-        return request is not null && Ok(request.State, StateCount, true) && Ok(request.Reference, OutputCount, false) && Ok(request.PreviousInput, InputCount, false);
+        static bool Rows(double[][]? rows, int width, int horizon) =>
+            rows is null || (rows.Length >= 1 && rows.Length <= horizon && Array.TrueForAll(rows, row => Ok(row, width, true)));
+        return request is not null && Ok(request.State, StateCount, true) && Ok(request.Reference, OutputCount, false) && Ok(request.PreviousInput, InputCount, false)
+            && Rows(request.ReferenceSchedule, OutputCount, Horizon) && (request.Disturbance is null || (DisturbanceCount > 0 && Rows(request.Disturbance, DisturbanceCount, Horizon)))
+            && !(request.Reference is not null && request.ReferenceSchedule is not null);
+    }
+
+    /// <summary>A schedule or forecast: 1…N rows of <paramref name="width"/> finite numbers; the count is checked before the rows.</summary>
+    private static void CheckRows(double[][]? rows, string path, int width, int horizon, List<ValidationError> errors)
+    {
+        if (rows is null)
+        {
+            return;
+        }
+
+        if (rows.Length < 1 || rows.Length > horizon)
+        {
+            errors.Add(new(path, $"has {rows.Length} rows; give 1 to {horizon} (the horizon), the last one is held to the end"));
+            return;
+        }
+
+        for (int k = 0; k < rows.Length && errors.Count < 20; k++)
+        {
+            CheckVector(rows[k], $"{path}[{k}]", width, required: true, errors);
+        }
     }
 
     /// <summary>

@@ -69,7 +69,8 @@ internal sealed class ConstrainedProblem
     /// </summary>
     /// <param name="warm">A workspace the caller keeps between solves of this variant: the solve starts from its last
     /// active set and leaves its own there. Null takes a pooled workspace and starts cold.</param>
-    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations, QpWorkspace? warm = null)
+    /// <param name="outputOffsets">C d_k of a measured disturbance ((N+1) rows of p), or empty (see <see cref="LimitRows.RightHandSides"/>).</param>
+    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations, QpWorkspace? warm = null, ReadOnlySpan<double> outputOffsets = default)
     {
         int nm = decisionVariables;
         int variables = nm + SoftLimits.Count;
@@ -84,9 +85,11 @@ internal sealed class ConstrainedProblem
             var xSpan = x.AsSpan(0, variables);
             var startSpan = start.AsSpan(0, variables);
             // Only the inputs that cannot reach their window lose their first rate limit; the others keep theirs.
-            Rows.RightHandSides(x0, previousInput, unreachable, rhsSpan);
+            Rows.RightHandSides(x0, previousInput, unreachable, rhsSpan, outputOffsets);
             inputs.CopyTo(startSpan);
-            var request = new SoftLimitPolicy.Request(x0, previousInput, unreachable, ForcedViolation);
+
+            // The bound on forced violations rolls out x_0 alone; with a disturbance it does not apply.
+            var request = new SoftLimitPolicy.Request(x0, previousInput, unreachable, outputOffsets.IsEmpty ? ForcedViolation : null);
             var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, request, warmStart: warm is not null);
             xSpan[..nm].CopyTo(inputs);
 

@@ -12,9 +12,9 @@ namespace Lookahead.Core.Planning;
 /// immutable after construction.
 /// </summary>
 /// <remarks>
-/// The factor is what limited plans (their solver starts from it) and refined plans (each refinement step solves
-/// with it) read; the compiler keeps it for exactly those models. A model with neither answers every plan from the
-/// maps alone, and not keeping an N·m × N·m factor is most of its memory. The Hessian itself is never stored: it is
+/// The factor is what limited plans (their solver starts from it), refined plans (each refinement step solves with
+/// it) and plans with a reference schedule or a measured disturbance (one Newton step from the maps' answer) read;
+/// the compiler keeps it for every model. The Hessian itself is never stored: it is
 /// <see cref="FactoredSymmetricMatrix"/> over the factor.
 /// </remarks>
 internal sealed class GainSet

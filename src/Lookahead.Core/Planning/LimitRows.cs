@@ -170,8 +170,13 @@ internal sealed class LimitRows
     /// input, and those of each input in <paramref name="relaxedFirstRateInputs"/> (one that cannot reach its window
     /// within its rate limit, see <see cref="UnreachableFirstMoves"/>); every other input keeps its first rate limit.
     /// </summary>
-    public void RightHandSides(ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, IReadOnlyCollection<int> relaxedFirstRateInputs, Span<double> rhs)
+    /// <param name="outputOffsets">
+    /// What a measured disturbance adds to each predicted output, C d_k for k = 0 … N ((N+1) rows of p), or empty:
+    /// it moves the output rows like the free response of x_0 does.
+    /// </param>
+    public void RightHandSides(ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, IReadOnlyCollection<int> relaxedFirstRateInputs, Span<double> rhs, ReadOnlySpan<double> outputOffsets = default)
     {
+        int p = outputOffsets.IsEmpty ? 0 : outputOffsets.Length / (horizon + 1);
         constantRhs.CopyTo(rhs);
         for (int row = 0; row < meanings.Length; row++)
         {
@@ -185,10 +190,10 @@ internal sealed class LimitRows
                     rhs[row] = previousInput.IsEmpty || relaxedFirstRateInputs.Contains(what.Index) ? double.NegativeInfinity : rhs[row] - previousInput[what.Index];
                     break;
                 case LimitKind.OutputMin when !what.IsSlackBound:
-                    rhs[row] -= FreeResponse(what.Step, what.Index, x0);
+                    rhs[row] -= FreeResponse(what.Step, what.Index, x0) + (p == 0 ? 0 : outputOffsets[(what.Step * p) + what.Index]);
                     break;
                 case LimitKind.OutputMax when !what.IsSlackBound:
-                    rhs[row] += FreeResponse(what.Step, what.Index, x0);
+                    rhs[row] += FreeResponse(what.Step, what.Index, x0) + (p == 0 ? 0 : outputOffsets[(what.Step * p) + what.Index]);
                     break;
             }
         }

@@ -35,9 +35,10 @@ public static class ModelCompiler
         int n = model.StateCount;
         var a = model.A;
         var b = model.B;
+        var e = model.E;
         if (model.TimeDomain == TimeDomain.Continuous)
         {
-            (a, b) = Discretise(model);
+            (a, b, e) = Discretise(model);
         }
 
         var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);
@@ -69,7 +70,7 @@ public static class ModelCompiler
         }
 
         var (withoutPrevious, withPrevious, condition) = BuildGains(model, a, b, terminal, algebra);
-        var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight));
+        var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight, e));
         ConstrainedProblem? constrainedWithout = null;
         ConstrainedProblem? constrainedWith = null;
         InteriorPointProblem? interiorPoint = null;
@@ -139,16 +140,19 @@ public static class ModelCompiler
 
         var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);
         var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
-        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options);
+        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options) { DisturbanceInput = e };
     }
 
     /// <summary>Discretises a continuous plant, naming the field when the hold is out of range.</summary>
-    private static (Matrix<double> A, Matrix<double> B) Discretise(ValidatedModel model)
+    /// <remarks>B and E are held together — the disturbance is held between samples like the inputs — and split after.</remarks>
+    private static (Matrix<double> A, Matrix<double> B, Matrix<double> E) Discretise(ValidatedModel model)
     {
-        Matrix<double> ad, bd;
+        Matrix<double> ad, held;
+        int m = model.InputCount;
         try
         {
-            (ad, bd) = ZeroOrderHold.Discretise(model.A, model.B, model.SampleTime);
+            var drives = model.DisturbanceCount == 0 ? model.B : model.B.Append(model.E);
+            (ad, held) = ZeroOrderHold.Discretise(model.A, drives, model.SampleTime);
         }
         catch (ArgumentException ex)
         {
@@ -163,16 +167,18 @@ public static class ModelCompiler
 
         // The held plant must respect the same entry bound as a discrete one: a long hold of a growing plant,
         // or of integrators (B_d ≈ T·B), can push it past what the later products can carry.
-        foreach (var (held, name) in new[] { (ad, "A_d"), (bd, "B_d") })
+        var bd = held.SubMatrix(0, held.RowCount, 0, m);
+        var ed = held.SubMatrix(0, held.RowCount, m, model.DisturbanceCount);
+        foreach (var (matrix, name) in new[] { (ad, "A_d"), (bd, "B_d"), (ed, "E_d") })
         {
-            double largest = held.Enumerate().Select(Math.Abs).DefaultIfEmpty(0).Max();
+            double largest = matrix.Enumerate().Select(Math.Abs).DefaultIfEmpty(0).Max();
             if (largest > ModelValidator.MaxMagnitude)
             {
                 throw new ModelValidationException("plant.sampleTime", $"is {model.SampleTime:g3} s; held over it the plant's {name} has entries up to {largest:g3}, beyond {ModelValidator.MaxMagnitude:g3} — shorten the sample time or check the units of A and B");
             }
         }
 
-        return (ad, bd);
+        return (ad, bd, ed);
     }
 
     /// <summary>The exception's message without the "(Parameter 'x')" suffix that names the argument.</summary>
@@ -243,7 +249,9 @@ public static class ModelCompiler
         var formWithout = GainSet.Solve(algebra, hessian, rows, layout, mapsWithout, layout.PreviousInputStart, condensed.FreeCost)
             ?? throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
         double condition = Guarded("cost.inputWeight", "the condition number of the condensed Hessian could not be computed", () => HessianCondition.Compute(algebra, rows, exact, hessian));
-        bool keepFactor = model.Limits.Any || condition > CompiledModel.RefinementCondition;
+        // Every model keeps its factor: a request with a reference schedule or a measured disturbance is answered by one
+        // exact Newton step from the gains' answer, which solves with it.
+        bool keepFactor = true;
         var withoutPrevious = new GainSet(rows, layout, mapsWithout, formWithout, keepFactor ? KeepFactor(hessian, rows) : null);
         if (mapsWithPrevious is null)
         {

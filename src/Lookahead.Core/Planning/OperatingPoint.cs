@@ -11,12 +11,14 @@ public sealed class OperatingPoint
     /// <param name="state">x_op (n).</param>
     /// <param name="input">u_op (m).</param>
     /// <param name="output">y_op (p).</param>
-    public OperatingPoint(double[] state, double[] input, double[] output)
+    /// <param name="disturbance">v_op (q), the measured disturbances' values at the operating point.</param>
+    public OperatingPoint(double[] state, double[] input, double[] output, double[]? disturbance = null)
     {
         State = state;
         Input = input;
         Output = output;
-        IsOrigin = state.All(v => v == 0) && input.All(v => v == 0) && output.All(v => v == 0);
+        Disturbance = disturbance ?? [];
+        IsOrigin = state.All(v => v == 0) && input.All(v => v == 0) && output.All(v => v == 0) && Disturbance.All(v => v == 0);
     }
 
     public double[] State { get; }
@@ -25,16 +27,20 @@ public sealed class OperatingPoint
 
     public double[] Output { get; }
 
+    public double[] Disturbance { get; }
+
     /// <summary>True when every offset is zero: the model's units are the client's, nothing is converted.</summary>
     public bool IsOrigin { get; }
 
-    public static OperatingPoint Origin(int states, int inputs, int outputs) => new(new double[states], new double[inputs], new double[outputs]);
+    public static OperatingPoint Origin(int states, int inputs, int outputs, int disturbances = 0) => new(new double[states], new double[inputs], new double[outputs], new double[disturbances]);
 
     /// <summary>The request in deviations (new arrays; the caller's are left alone). Vectors of the wrong length pass through for validation to name.</summary>
     public PlanRequest ToDeviations(PlanRequest request) => IsOrigin ? request : new PlanRequest(
         Minus(request.State, State)!,
         Minus(request.Reference, Output),
-        Minus(request.PreviousInput, Input));
+        Minus(request.PreviousInput, Input),
+        request.ReferenceSchedule?.Select(row => Minus(row, Output)!).ToArray(),
+        request.Disturbance?.Select(row => Minus(row, Disturbance)!).ToArray());
 
     /// <summary>Adds the offsets to the plan's trajectories and target, in place.</summary>
     public void ToEngineering(Plan plan)

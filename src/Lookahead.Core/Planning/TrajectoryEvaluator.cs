@@ -66,7 +66,14 @@ internal sealed class TrajectoryEvaluator
     }
 
     /// <summary>Fills the plan's states and outputs from its inputs and returns J.</summary>
-    public double Evaluate(Plan plan, ReadOnlySpan<double> x0, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput)
+    public double Evaluate(Plan plan, ReadOnlySpan<double> x0, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput) =>
+        Evaluate(plan, x0, new StageReferences(reference, 0), default, targetState, targetInput, previousInput);
+
+    /// <summary>
+    /// As above with a setpoint per stage and a measured-disturbance drive per step: x_{k+1} = A x_k + B u_k + w_k with
+    /// <paramref name="drives"/> holding w_k = E v_k (N rows of n; empty for none).
+    /// </summary>
+    public double Evaluate(Plan plan, ReadOnlySpan<double> x0, StageReferences references, ReadOnlySpan<double> drives, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput)
     {
         int horizon = plan.Horizon;
         var states = plan.States.AsSpan();
@@ -75,7 +82,12 @@ internal sealed class TrajectoryEvaluator
         x0.CopyTo(states);
         for (int k = 0; k < horizon; k++)
         {
-            Step(states.Slice(k * n, n), inputs.Slice(k * m, m), states.Slice((k + 1) * n, n));
+            var next = states.Slice((k + 1) * n, n);
+            Step(states.Slice(k * n, n), inputs.Slice(k * m, m), next);
+            if (!drives.IsEmpty)
+            {
+                DenseKernels.Axpy(1.0, drives.Slice(k * n, n), next);
+            }
         }
 
         for (int k = 0; k <= horizon; k++)
@@ -83,17 +95,21 @@ internal sealed class TrajectoryEvaluator
             Output(states.Slice(k * n, n), outputs.Slice(k * p, p));
         }
 
-        return Cost(plan.Inputs, plan.States, plan.Outputs, horizon, reference, targetState, targetInput, previousInput);
+        return Cost(plan.Inputs, plan.States, plan.Outputs, horizon, references, targetState, targetInput, previousInput);
     }
 
     /// <summary>J for a trajectory already rolled out; empty reference, targets or previous input mean none.</summary>
-    public double Cost(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput)
+    public double Cost(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput) =>
+        Cost(inputs, states, outputs, horizon, new StageReferences(reference, 0), targetState, targetInput, previousInput);
+
+    /// <summary>J for a trajectory already rolled out, with the stage-k setpoint from <paramref name="references"/>.</summary>
+    public double Cost(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, StageReferences references, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput)
     {
         double cost = 0;
         for (int k = 0; k < horizon; k++)
         {
             var before = k > 0 ? inputs.Slice((k - 1) * m, m) : previousInput;
-            cost += StageCost(outputs.Slice(k * p, p), inputs.Slice(k * m, m), reference, targetInput, before);
+            cost += StageCost(outputs.Slice(k * p, p), inputs.Slice(k * m, m), references.At(k, p), targetInput, before);
         }
 
         return cost + TerminalCost(states.Slice(horizon * n, n), targetState);
@@ -165,7 +181,11 @@ internal sealed class TrajectoryEvaluator
     /// g_k = R(u_k − u_s) + Bᵀμ_{k+1} + the Δu terms. Evaluated on the rolled-out trajectory, it does not inherit
     /// the rounding of the condensed Hessian, which is what makes it useful for refinement.
     /// </summary>
-    public void Gradient(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput, Span<double> gradient)
+    public void Gradient(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, ReadOnlySpan<double> reference, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput, Span<double> gradient) =>
+        Gradient(inputs, states, outputs, horizon, new StageReferences(reference, 0), targetState, targetInput, previousInput, gradient);
+
+    /// <summary>As above with the stage-k setpoint from <paramref name="references"/> (the trajectory carries any disturbance already).</summary>
+    public void Gradient(ReadOnlySpan<double> inputs, ReadOnlySpan<double> states, ReadOnlySpan<double> outputs, int horizon, StageReferences references, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, ReadOnlySpan<double> previousInput, Span<double> gradient)
     {
         Span<double> mu = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
         Span<double> next = StackScratch.Fits(n) ? stackalloc double[n] : new double[n];
@@ -208,7 +228,7 @@ internal sealed class TrajectoryEvaluator
                 // μ_k = CᵀQ(y_k − r) + Aᵀμ_{k+1}
                 next.Clear();
                 DenseKernels.MultiplyTransposedAdd(a, mu, next);
-                Difference(outputs.Slice(k * p, p), reference, dy);
+                Difference(outputs.Slice(k * p, p), references.At(k, p), dy);
                 DenseKernels.Multiply(q, dy, qdy);
                 if (outputIsState)
                 {

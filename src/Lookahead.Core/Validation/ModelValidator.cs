@@ -125,6 +125,17 @@ public static class ModelValidator
             }
         }
 
+        int disturbances = 0;
+        if (plant.E is not null && n > 0)
+        {
+            disturbances = ColumnCountOf(plant.E, "plant.e", n, errors);
+            if (disturbances > limits.MaxInputs)
+            {
+                errors.Add(new("plant.e", $"has {disturbances} disturbances; at most {limits.MaxInputs} are allowed"));
+                return null;
+            }
+        }
+
         if (!double.IsFinite(plant.SampleTime) || plant.SampleTime <= 0)
         {
             errors.Add(new("plant.sampleTime", "must be a finite number of seconds greater than 0"));
@@ -174,9 +185,9 @@ public static class ModelValidator
             }
         }
 
-        var operatingPoint = CheckOperatingPoint(document.OperatingPoint, n, m, p, errors);
+        var operatingPoint = CheckOperatingPoint(document.OperatingPoint, n, m, p, Math.Max(disturbances, 0), errors);
         var validatedLimits = CheckLimits(document.Limits, m, p, errors);
-        CheckLabels(document.Labels, n, m, p, errors);
+        CheckLabels(document.Labels, n, m, p, Math.Max(disturbances, 0), errors);
         if (errors.Count > 0)
         {
             return null;
@@ -185,6 +196,7 @@ public static class ModelValidator
         // Shapes are right: now numbers and definiteness.
         var a = ToMatrix(plant.A, "plant.a", errors);
         var b = ToMatrix(plant.B, "plant.b", errors);
+        var e = plant.E is null ? Matrix<double>.Build.Dense(n, 0) : ToMatrix(plant.E, "plant.e", errors);
         var c = plant.C is null ? Matrix<double>.Build.DenseIdentity(n) : ToMatrix(plant.C, "plant.c", errors);
         var q = ToWeight(cost.OutputWeight, "cost.outputWeight", errors);
         var r = ToWeight(cost.InputWeight, "cost.inputWeight", errors);
@@ -213,7 +225,7 @@ public static class ModelValidator
             return null;
         }
 
-        return new ValidatedModel(document, a, b, c, plant.C is null, plant.SampleTime, plant.TimeDomain, horizon, q, r, s, terminal.Kind, pTerminal, validatedLimits!.InDeviations(operatingPoint), operatingPoint);
+        return new ValidatedModel(document, a, b, c, plant.C is null, plant.SampleTime, plant.TimeDomain, horizon, q, r, s, terminal.Kind, pTerminal, validatedLimits!.InDeviations(operatingPoint), operatingPoint) { E = e };
     }
 
     private static int RowCount(double[][]? rows, string path, List<ValidationError> errors)
@@ -545,7 +557,7 @@ public static class ModelValidator
         }
     }
 
-    private static void CheckLabels(LabelsSpec? labels, int n, int m, int p, List<ValidationError> errors)
+    private static void CheckLabels(LabelsSpec? labels, int n, int m, int p, int q, List<ValidationError> errors)
     {
         if (labels is null)
         {
@@ -555,8 +567,10 @@ public static class ModelValidator
         CheckNames(labels.States, "labels.states", n, errors);
         CheckNames(labels.Inputs, "labels.inputs", m, errors);
         CheckNames(labels.Outputs, "labels.outputs", p, errors);
+        CheckNames(labels.Disturbances, "labels.disturbances", q, errors);
         if (labels.Units is { } units)
         {
+            CheckUnits(units.Disturbances, "labels.units.disturbances", q, errors);
             CheckUnits(units.States, "labels.units.states", n, errors);
             CheckUnits(units.Inputs, "labels.units.inputs", m, errors);
             CheckUnits(units.Outputs, "labels.units.outputs", p, errors);
@@ -587,17 +601,18 @@ public static class ModelValidator
     }
 
     /// <summary>The operating point with missing parts as zeros; every given entry finite and within <see cref="MaxMagnitude"/>.</summary>
-    private static OperatingPoint CheckOperatingPoint(OperatingPointSpec? spec, int n, int m, int p, List<ValidationError> errors)
+    private static OperatingPoint CheckOperatingPoint(OperatingPointSpec? spec, int n, int m, int p, int q, List<ValidationError> errors)
     {
         if (spec is null)
         {
-            return OperatingPoint.Origin(n, m, p);
+            return OperatingPoint.Origin(n, m, p, q);
         }
 
         return new OperatingPoint(
             OperatingValues(spec.State, "operatingPoint.state", n, errors),
             OperatingValues(spec.Input, "operatingPoint.input", m, errors),
-            OperatingValues(spec.Output, "operatingPoint.output", p, errors));
+            OperatingValues(spec.Output, "operatingPoint.output", p, errors),
+            OperatingValues(spec.Disturbance, "operatingPoint.disturbance", q, errors));
     }
 
     private static double[] OperatingValues(double[]? given, string path, int size, List<ValidationError> errors)

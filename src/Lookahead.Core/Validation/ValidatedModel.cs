@@ -31,6 +31,11 @@ internal sealed record ValidatedModel(
     public int InputCount => B.ColumnCount;
 
     public int OutputCount => C.RowCount;
+
+    /// <summary>E (n×q, in the document's time domain); n×0 without measured disturbances.</summary>
+    public Matrix<double> E { get; init; } = Matrix<double>.Build.Dense(A.RowCount, 0);
+
+    public int DisturbanceCount => E.ColumnCount;
 }
 
 /// <summary>Limits with unbounded entries as ±∞, so the solver needs no null checks.</summary>

@@ -44,7 +44,8 @@ public static class Fixtures
             plant.GetProperty("b").Matrix(),
             plant.TryGetProperty("c", out var cm) ? cm.Matrix() : null,
             plant.GetProperty("sampleTime").GetDouble(),
-            domain);
+            domain,
+            plant.TryGetProperty("e", out var e) ? e.Matrix() : null);
         var costSpec = new CostSpec(
             cost.GetProperty("horizon").GetInt32(),
             Weight(cost.GetProperty("outputWeight")),
