@@ -13,19 +13,20 @@ public sealed record ModelDocumentDto(
     OperatingPointDto? OperatingPoint = null);
 
 /// <summary>x_op (n), u_op (m), y_op (p) in engineering units; a missing part is zero.</summary>
-public sealed record OperatingPointDto(double[]? State, double[]? Input, double[]? Output)
+public sealed record OperatingPointDto(double[]? State, double[]? Input, double[]? Output, double[]? Disturbance = null)
 {
     [JsonIgnore]
-    public bool IsEmpty => State is null && Input is null && Output is null;
+    public bool IsEmpty => State is null && Input is null && Output is null && Disturbance is null;
 }
 
-/// <summary>x(k+1) = A x(k) + B u(k) (or x' = Ax + Bu when continuous), y = C x. Matrices are arrays of rows.</summary>
+/// <summary>x(k+1) = A x(k) + B u(k) + E v(k) (or x' = Ax + Bu + Ev when continuous), y = C x. Matrices are arrays of rows; E (n×q) is optional: measured disturbances v.</summary>
 public sealed record PlantDto(
     double[][]? A,
     double[][]? B,
     double[][]? C,
     double? SampleTime,
-    string? TimeDomain);
+    string? TimeDomain,
+    double[][]? E = null);
 
 public sealed record CostDto(
     int? Horizon,
@@ -49,15 +50,15 @@ public sealed record LimitsDto(
         && OutputMin is null && OutputMax is null && OutputViolationWeight is null;
 }
 
-public sealed record LabelsDto(string[]? States, string[]? Inputs, string[]? Outputs, UnitsDto? Units = null)
+public sealed record LabelsDto(string[]? States, string[]? Inputs, string[]? Outputs, UnitsDto? Units = null, string[]? Disturbances = null)
 {
     [JsonIgnore]
-    public bool IsEmpty => States is null && Inputs is null && Outputs is null && Units is null;
+    public bool IsEmpty => States is null && Inputs is null && Outputs is null && Units is null && Disturbances is null;
 }
 
 /// <summary>Free-text units per state, input and output (°C, %, bar), shown on chart axes and in the model's details.</summary>
-public sealed record UnitsDto(string[]? States, string[]? Inputs, string[]? Outputs)
+public sealed record UnitsDto(string[]? States, string[]? Inputs, string[]? Outputs, string[]? Disturbances = null)
 {
     [JsonIgnore]
-    public bool IsEmpty => States is null && Inputs is null && Outputs is null;
+    public bool IsEmpty => States is null && Inputs is null && Outputs is null && Disturbances is null;
 }

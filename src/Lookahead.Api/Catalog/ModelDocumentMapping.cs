@@ -36,7 +36,7 @@ public static class ModelDocumentMapping
             }
 
             var domain = ParseTimeDomain(p.TimeDomain, "plant.timeDomain", errors);
-            plant = new PlantSpec(p.A!, p.B!, p.C, p.SampleTime ?? double.NaN, domain);
+            plant = new PlantSpec(p.A!, p.B!, p.C, p.SampleTime ?? double.NaN, domain, p.E);
         }
 
         CostSpec cost = null!;
@@ -59,9 +59,9 @@ public static class ModelDocumentMapping
             ? new LimitsSpec(l.InputMin, l.InputMax, l.InputRateMin, l.InputRateMax, l.OutputMin, l.OutputMax, l.OutputViolationWeight)
             : null;
         LabelsSpec? labels = dto.Labels is { } names
-            ? new LabelsSpec(names.States, names.Inputs, names.Outputs, names.Units is { } units ? new UnitsSpec(units.States, units.Inputs, units.Outputs) : null)
+            ? new LabelsSpec(names.States, names.Inputs, names.Outputs, names.Units is { } units ? new UnitsSpec(units.States, units.Inputs, units.Outputs, units.Disturbances) : null, names.Disturbances)
             : null;
-        var point = dto.OperatingPoint is { } op ? new OperatingPointSpec(op.State, op.Input, op.Output) : null;
+        var point = dto.OperatingPoint is { } op ? new OperatingPointSpec(op.State, op.Input, op.Output, op.Disturbance) : null;
         return new ModelDocument(dto.Name, plant, cost, limits, labels, point);
     }
 

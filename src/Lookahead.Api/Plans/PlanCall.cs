@@ -9,13 +9,36 @@ namespace Lookahead.Api.Plans;
 /// </summary>
 public class PlanCall
 {
-    public PlanCall(int n, int m, int p)
+    /// <param name="n">States.</param>
+    /// <param name="m">Inputs.</param>
+    /// <param name="p">Outputs.</param>
+    /// <param name="q">Measured disturbances (0: the model takes none).</param>
+    /// <param name="horizon">N, the most rows a schedule or forecast may have.</param>
+    public PlanCall(int n, int m, int p, int q = 0, int horizon = 1)
     {
         State = new double[n];
         Reference = new double[p];
         PreviousInput = new double[m];
         FirstMove = new double[m];
+        DisturbanceCount = q;
+        Horizon = horizon;
     }
+
+    public int DisturbanceCount { get; }
+
+    public int Horizon { get; }
+
+    /// <summary>Rows of a reference schedule (made on first use, N rows of p); the first <see cref="ReferenceRowCount"/> are this call's.</summary>
+    public double[][] ReferenceRows => referenceRows ??= Rows(Horizon, Reference.Length);
+
+    /// <summary>Rows of a disturbance forecast (made on first use, N rows of q); the first <see cref="DisturbanceRowCount"/> are this call's.</summary>
+    public double[][] DisturbanceRows => disturbanceRows ??= Rows(Horizon, DisturbanceCount);
+
+    /// <summary>Rows of the schedule given (0: none, or a single setpoint in <see cref="Reference"/>).</summary>
+    public int ReferenceRowCount { get; set; }
+
+    /// <summary>Rows of the disturbance given (0: none; a single vector is one row).</summary>
+    public int DisturbanceRowCount { get; set; }
 
     public double[] State { get; }
 
@@ -47,12 +70,24 @@ public class PlanCall
     public void AddError(string path, string reason) => Errors.Add(new ProblemError(path, reason));
 
     /// <summary>The core's request over this call's buffers (no copies).</summary>
-    public PlanRequest ToRequest() => new(State, HasReference ? Reference : null, HasPreviousInput ? PreviousInput : null);
+    public PlanRequest ToRequest() => new(
+        State,
+        HasReference ? Reference : null,
+        HasPreviousInput ? PreviousInput : null,
+        ReferenceRowCount > 0 ? ReferenceRows[..ReferenceRowCount] : null,
+        DisturbanceRowCount > 0 ? DisturbanceRows[..DisturbanceRowCount] : null);
+
+    private double[][]? referenceRows;
+    private double[][]? disturbanceRows;
+
+    private static double[][] Rows(int count, int width) => Enumerable.Range(0, count).Select(_ => new double[width]).ToArray();
 
     protected void ResetCall()
     {
         HasReference = false;
         HasPreviousInput = false;
+        ReferenceRowCount = 0;
+        DisturbanceRowCount = 0;
         Errors.Clear();
         SyntaxErrorAt = null;
         Plan = null;

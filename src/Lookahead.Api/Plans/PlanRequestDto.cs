@@ -1,4 +1,8 @@
 namespace Lookahead.Api.Plans;
 
-/// <summary>Body of POST …/plan: measured state x₀ (n), optional setpoint r (p) and the input now applied u₋₁ (m).</summary>
-public sealed record PlanRequestDto(double[]? State, double[]? Reference, double[]? PreviousInput);
+/// <summary>
+/// Body of POST …/plan (documentation only; <see cref="PlanRequestParser"/> reads requests): measured state x₀ (n);
+/// optional setpoint — one p-vector held over the horizon, or a schedule of 1…N rows of p (the last held); the input
+/// now applied u₋₁ (m); measured disturbances — one q-vector held, or a forecast of 1…N rows of q (the last held).
+/// </summary>
+public sealed record PlanRequestDto(double[]? State, VectorOrRows? Reference, double[]? PreviousInput, VectorOrRows? Disturbance = null);

@@ -4,7 +4,8 @@ using Lookahead.Api.Http;
 namespace Lookahead.Api.Plans;
 
 /// <summary>
-/// The one parser of a plan request ({ "state", "reference"?, "previousInput"? }), for /plan, alias plans and
+/// The one parser of a plan request ({ "state", "reference"?, "previousInput"?, "disturbance"? }, where a reference
+/// is one setpoint or a schedule of rows and a disturbance one vector or a forecast of rows), for /plan, alias plans and
 /// JSON and NDJSON replay rows. It reads straight into the call's preallocated vectors with Utf8JsonReader: no DTO,
 /// no intermediate arrays, and a wrong length is found without growing anything.
 /// </summary>
@@ -25,7 +26,7 @@ public static class PlanRequestParser
                 return;
             }
 
-            bool sawState = false, sawReference = false, sawPrevious = false;
+            bool sawState = false, sawReference = false, sawPrevious = false, sawDisturbance = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
                 if (reader.ValueTextEquals("state"u8))
@@ -41,7 +42,29 @@ public static class PlanRequestParser
                 {
                     Duplicate(ref sawReference, row, pathPrefix + "reference");
                     reader.Read();
-                    row.HasReference = ReadVector(ref reader, row.Reference, pathPrefix + "reference", row);
+                    var (isVector, rows) = ReadVectorOrRows(ref reader, row.Reference, () => row.ReferenceRows, pathPrefix + "reference", row);
+                    row.HasReference = isVector;
+                    row.ReferenceRowCount = rows;
+                }
+                else if (reader.ValueTextEquals("disturbance"u8))
+                {
+                    Duplicate(ref sawDisturbance, row, pathPrefix + "disturbance");
+                    reader.Read();
+                    if (row.DisturbanceCount == 0)
+                    {
+                        if (reader.TokenType != JsonTokenType.Null)
+                        {
+                            row.AddError(pathPrefix + "disturbance", "the model has no measured disturbances (plant.e)");
+                        }
+
+                        reader.Skip();
+                    }
+                    else
+                    {
+                        // One vector is a forecast of one row, held over the horizon.
+                        var (isVector, rows) = ReadVectorOrRows(ref reader, row.DisturbanceRows[0], () => row.DisturbanceRows, pathPrefix + "disturbance", row);
+                        row.DisturbanceRowCount = isVector ? 1 : rows;
+                    }
                 }
                 else if (reader.ValueTextEquals("previousInput"u8))
                 {
@@ -90,8 +113,68 @@ public static class PlanRequestParser
             return true;
         }
 
+        reader.Read();
+        ReadElements(ref reader, target, path, row);
+        return true;
+    }
+
+    /// <summary>
+    /// Reads one vector (into <paramref name="vector"/>) or an array of rows (into the rows <paramref name="rows"/> gives,
+    /// at most as many as it has: the horizon). Returns whether a vector was read and how many rows; (false, 0) for null.
+    /// </summary>
+    private static (bool IsVector, int Rows) ReadVectorOrRows(ref Utf8JsonReader reader, double[] vector, Func<double[][]> rows, string path, PlanCall row)
+    {
+        if (reader.TokenType == JsonTokenType.Null)
+        {
+            return (false, 0);
+        }
+
+        if (reader.TokenType != JsonTokenType.StartArray)
+        {
+            row.AddError(path, "must be an array of numbers, or an array of rows");
+            reader.Skip();
+            return (true, 0);
+        }
+
+        reader.Read();
+        if (reader.TokenType != JsonTokenType.StartArray)
+        {
+            ReadElements(ref reader, vector, path, row);
+            return (true, 0);
+        }
+
+        var target = rows();
         int count = 0;
-        while (reader.Read() && reader.TokenType != JsonTokenType.EndArray)
+        while (reader.TokenType != JsonTokenType.EndArray)
+        {
+            if (count < target.Length)
+            {
+                ReadVector(ref reader, target[count], $"{path}[{count}]", row);
+            }
+            else
+            {
+                // More rows than the horizon: counted, not kept.
+                reader.Skip();
+            }
+
+            count++;
+            reader.Read();
+        }
+
+        if (count > target.Length)
+        {
+            row.AddError(path, $"has {count} rows; give 1 to {target.Length} (the horizon), the last one is held to the end");
+            return (false, 0);
+        }
+
+        return (false, count);
+    }
+
+    /// <summary>Reads numbers from the current token to the end of the array into <paramref name="target"/>, checking each and the count.</summary>
+    private static void ReadElements(ref Utf8JsonReader reader, double[] target, string path, PlanCall row)
+    {
+        int count = 0;
+        while (reader.TokenType != JsonTokenType.EndArray)
         {
             if (reader.TokenType == JsonTokenType.Number && reader.TryGetDouble(out double value) && double.IsFinite(value))
             {
@@ -107,14 +190,13 @@ public static class PlanRequestParser
             }
 
             count++;
+            reader.Read();
         }
 
         if (count != target.Length)
         {
             row.AddError(path, $"has {count} entries; expected {target.Length}");
         }
-
-        return true;
     }
 
     private static void Duplicate(ref bool seen, PlanCall row, string path)

@@ -20,6 +20,11 @@ public static class PlansApi
             Type = Microsoft.OpenApi.JsonSchemaType.Array,
             Items = OpenApiSchemas.Vector(),
         }));
+        services.ConfigureSwaggerGen(o => o.MapType<VectorOrRows>(() => new Microsoft.OpenApi.OpenApiSchema
+        {
+            Description = "One vector held over the horizon, or 1…N rows (row k for step k), the last row held to the end.",
+            OneOf = [OpenApiSchemas.Vector(), OpenApiSchemas.Matrix()],
+        }));
         return services;
     }
 
@@ -99,7 +104,7 @@ public static class PlansApi
             services.Request,
             bytes =>
             {
-                var call = new PlanCall(model.StateCount, model.InputCount, model.OutputCount);
+                var call = new PlanCall(model.StateCount, model.InputCount, model.OutputCount, model.DisturbanceCount, model.Horizon);
                 PlanRequestParser.Parse(bytes, call, "", depth);
                 if (call.SyntaxErrorAt is { } at)
                 {
