@@ -10,13 +10,15 @@ namespace Lookahead.Core.Models;
 /// operating point every value a client sends or receives (states, references, previous inputs, limits, targets,
 /// trajectories) is in engineering units. Null: everything is in the model's own (deviation) units.
 /// </param>
+/// <param name="Estimator">An offset-free state estimator designed at registration (see <see cref="Estimation.EstimatorSpec"/>); null for none.</param>
 public sealed record ModelDocument(
     string? Name,
     PlantSpec Plant,
     CostSpec Cost,
     LimitsSpec? Limits = null,
     LabelsSpec? Labels = null,
-    OperatingPointSpec? OperatingPoint = null);
+    OperatingPointSpec? OperatingPoint = null,
+    Estimation.EstimatorSpec? Estimator = null);
 
 /// <summary>Engineering values of the states (n), inputs (m), outputs (p) and measured disturbances (q) at the operating point; a missing part is zero.</summary>
 public sealed record OperatingPointSpec(double[]? State = null, double[]? Input = null, double[]? Output = null, double[]? Disturbance = null);

@@ -38,23 +38,31 @@ public sealed partial class CompiledModel
         var gains = request.PreviousInput is null ? withoutPrevious : withPrevious;
         var warnings = new List<Warning>();
 
-        var references = Expand(request.ReferenceSchedule ?? (request.Reference is { } r ? [r] : null), p, horizon);
+        // An estimate's disturbance: a bias on every predicted output (output model) or an input offset (input model).
+        var (outputBias, inputShift) = EstimateOffsets(request.DisturbanceEstimate);
+        var references = ShiftRows(Expand(request.ReferenceSchedule ?? (request.Reference is { } r ? [r] : null), p, horizon), outputBias, p, horizon);
         var disturbance = request.FinalDisturbance;
-        var drives = Drives(request.Disturbance, n, q, horizon);
+        var drives = AddInputShift(Drives(request.Disturbance, n, q, horizon), inputShift, n, horizon);
 
-        // The target: for the last setpoint (zero without one) and the last disturbance row.
+        // The target: for the last setpoint (zero without one) and the last disturbance row, against the estimate.
         var finalReference = request.FinalReference ?? new double[p];
+        var shiftedReference = outputBias is null ? finalReference : OperatingPoint.Minus(finalReference, outputBias)!;
         var targetState = new double[n];
         var targetInput = new double[m];
-        bool limited = PreviewTargets(finalReference, disturbance, targetState, targetInput, warnings);
-        plan.Target = MakeTarget(finalReference, targetState, targetInput, limited);
-        if (!plan.Target.ReferenceReached && (request.FinalReference is not null || disturbance is not null))
+        bool limited = PreviewTargets(shiftedReference, disturbance, inputShift, targetState, targetInput, warnings);
+        plan.Target = MakeTarget(shiftedReference, targetState, targetInput, limited);
+        if (outputBias is not null)
+        {
+            plan.Target = plan.Target with { Output = OperatingPoint.Plus(plan.Target.Output, outputBias) };
+        }
+
+        if (!plan.Target.ReferenceReached && (request.FinalReference is not null || disturbance is not null || request.DisturbanceEstimate is not null))
         {
             warnings.Add(new Warning(limited ? WarningCode.SetpointOutsideInputLimits : WarningCode.SetpointUnreachable) { Amount = plan.Target.OutputError });
         }
 
         // The gains' answer for r̄ held and no disturbance, then the exact step to the true problem.
-        gains.Apply(request.State, finalReference, targetState, targetInput, request.PreviousInput, plan.Inputs);
+        gains.Apply(request.State, shiftedReference, targetState, targetInput, request.PreviousInput, plan.Inputs);
         var stageReferences = new StageReferences(references, references.Length == 0 ? 0 : p);
         var gradient = ArrayPool<double>.Shared.Rent(DecisionVariables);
         try
@@ -76,13 +84,14 @@ public sealed partial class CompiledModel
         var constrained = request.PreviousInput is null ? constrainedWithoutPrevious : constrainedWithPrevious;
         if (constrained is not null)
         {
-            var offsets = OutputOffsets(drives, n, p, horizon);
+            var offsets = OutputOffsets(drives, outputBias, n, p, horizon);
             var outcome = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained), offsets);
             plan.Status = outcome.Status;
             plan.Iterations = outcome.Iterations;
             plan.ActiveLimits = outcome.ActiveLimits;
             warnings.AddRange(outcome.Warnings);
             plan.Cost = trajectory.Evaluate(plan, request.State, stageReferences, drives, targetState, targetInput, request.PreviousInput);
+            AddBias(plan.Outputs, outputBias);
             var (violation, violationWarning) = constrained.SoftLimits.Violation(plan.Outputs, p);
             plan.MaxOutputViolation = violation;
             if (violationWarning is not null)
@@ -94,6 +103,7 @@ public sealed partial class CompiledModel
         else
         {
             plan.Cost = trajectory.Evaluate(plan, request.State, stageReferences, drives, targetState, targetInput, request.PreviousInput);
+            AddBias(plan.Outputs, outputBias);
         }
 
         if (warnings.Count > 0)
@@ -114,12 +124,14 @@ public sealed partial class CompiledModel
     /// with one, a target whose inputs break their limits is kept and flagged (the limited target does not take a
     /// disturbance yet). Returns whether the input limits moved the target.
     /// </summary>
-    private bool PreviewTargets(double[] reference, double[]? disturbance, Span<double> targetState, Span<double> targetInput, List<Warning> warnings)
+    private bool PreviewTargets(double[] reference, double[]? disturbance, double[]? inputShift, Span<double> targetState, Span<double> targetInput, List<Warning> warnings)
     {
-        if (disturbance is null)
+        if (disturbance is null && inputShift is null)
         {
             return Targets(reference, targetState, targetInput);
         }
+
+        disturbance ??= new double[DisturbanceCount];
 
         DenseKernels.Multiply(targets.StateMap, reference, targetState);
         DenseKernels.Multiply(targets.InputMap, reference, targetInput);
@@ -161,6 +173,13 @@ public sealed partial class CompiledModel
             warnings.Add(new Warning(WarningCode.DisturbanceNotBalanced) { Amount = worst });
         }
 
+        // An input disturbance d̂ adds to every input: the plant holds u_s + d̂, so the target input is u_s − d̂. The
+        // offset-free test passed only when that target is unique, so no tie-break is disturbed by the shift.
+        for (int i = 0; inputShift is not null && i < InputCount; i++)
+        {
+            targetInput[i] -= inputShift[i];
+        }
+
         if (targetSolver is not null)
         {
             double excess = 0;
@@ -181,6 +200,77 @@ public sealed partial class CompiledModel
 
     private static double DualActiveSetSolverTolerance(ValidatedLimits limits) =>
         Optimization.DualActiveSetSolver.FeasibilityTolerance * (1 + limits.InputMin.Concat(limits.InputMax).Where(double.IsFinite).Select(Math.Abs).DefaultIfEmpty(0).Max());
+
+    /// <summary>(C_d d̂, null) for an output disturbance model, (null, d̂) for an input one, (null, null) without an estimate.</summary>
+    private (double[]? OutputBias, double[]? InputShift) EstimateOffsets(double[]? disturbanceEstimate)
+    {
+        if (disturbanceEstimate is null || Estimator is null)
+        {
+            return (null, null);
+        }
+
+        return Estimator.DisturbanceModel switch
+        {
+            Estimation.DisturbanceModelKind.Output => (disturbanceEstimate, null),
+            Estimation.DisturbanceModelKind.Input => (null, disturbanceEstimate),
+            _ => (null, null),
+        };
+    }
+
+    /// <summary>r_k − bias for every stage (N rows of p); with a bias and no setpoint, −bias.</summary>
+    private static double[] ShiftRows(double[] rows, double[]? bias, int p, int horizon)
+    {
+        if (bias is null)
+        {
+            return rows;
+        }
+
+        var shifted = rows.Length == 0 ? new double[horizon * p] : rows;
+        for (int k = 0; k < horizon; k++)
+        {
+            for (int j = 0; j < p; j++)
+            {
+                shifted[(k * p) + j] -= bias[j];
+            }
+        }
+
+        return shifted;
+    }
+
+    /// <summary>Adds B d̂ to every step's drive (making the drives when there were none).</summary>
+    private double[] AddInputShift(double[] drives, double[]? inputShift, int n, int horizon)
+    {
+        if (inputShift is null)
+        {
+            return drives;
+        }
+
+        var result = drives.Length == 0 ? new double[horizon * n] : drives;
+        Span<double> shift = stackalloc double[n];
+        shift.Clear();
+        for (int i = 0; i < n; i++)
+        {
+            for (int j = 0; j < InputCount; j++)
+            {
+                shift[i] += DiscreteB[i][j] * inputShift[j];
+            }
+        }
+
+        for (int k = 0; k < horizon; k++)
+        {
+            DenseKernels.Axpy(1.0, shift, result.AsSpan(k * n, n));
+        }
+
+        return result;
+    }
+
+    private static void AddBias(Span<double> outputs, double[]? bias)
+    {
+        if (bias is not null)
+        {
+            OperatingPoint.AddRows(outputs, bias);
+        }
+    }
 
     /// <summary>1…N rows of width <paramref name="width"/> as N rows, the last one held; empty for none.</summary>
     private static double[] Expand(double[][]? rows, int width, int horizon)
@@ -217,24 +307,36 @@ public sealed partial class CompiledModel
         return drives;
     }
 
-    /// <summary>C d_k for k = 0 … N ((N+1) rows of p), d_0 = 0, d_{k+1} = A d_k + w_k; empty without a disturbance.</summary>
-    private double[] OutputOffsets(double[] drives, int n, int p, int horizon)
+    /// <summary>C d_k + bias for k = 0 … N ((N+1) rows of p), d_0 = 0, d_{k+1} = A d_k + w_k; empty with neither.</summary>
+    private double[] OutputOffsets(double[] drives, double[]? bias, int n, int p, int horizon)
     {
-        if (drives.Length == 0)
+        if (drives.Length == 0 && bias is null)
         {
             return [];
         }
 
         var offsets = new double[(horizon + 1) * p];
+        if (bias is not null)
+        {
+            OperatingPoint.AddRows(offsets, bias);
+        }
+
+        if (drives.Length == 0)
+        {
+            return offsets;
+        }
+
         var d = new double[n];
         var next = new double[n];
+        var y = new double[p];
         var noInput = new double[InputCount];
         for (int k = 0; k < horizon; k++)
         {
             trajectory.Step(d, noInput, next);
             DenseKernels.Axpy(1.0, drives.AsSpan(k * n, n), next);
             (d, next) = (next, d);
-            trajectory.Output(d, offsets.AsSpan((k + 1) * p, p));
+            trajectory.Output(d, y);
+            DenseKernels.Axpy(1.0, y, offsets.AsSpan((k + 1) * p, p));
         }
 
         return offsets;

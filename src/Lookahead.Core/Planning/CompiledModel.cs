@@ -122,6 +122,9 @@ public sealed partial class CompiledModel
         }
     }
 
+    /// <summary>The offset-free estimator designed at registration, or null when the model has none.</summary>
+    public Estimation.Estimator? Estimator { get; init; }
+
     /// <summary>q, the measured disturbances the model takes.</summary>
     public int DisturbanceCount => model.DisturbanceCount;
 
@@ -177,6 +180,18 @@ public sealed partial class CompiledModel
         if (request.Reference is not null && request.ReferenceSchedule is not null)
         {
             errors.Add(new("reference", "give one setpoint or a schedule, not both"));
+        }
+
+        if (request.DisturbanceEstimate is not null)
+        {
+            if (Estimator is null)
+            {
+                errors.Add(new("estimate.disturbance", "the model has no estimator; send a measured state instead"));
+            }
+            else
+            {
+                CheckVector(request.DisturbanceEstimate, "estimate.disturbance", Estimator.DisturbanceCount, required: true, errors);
+            }
         }
 
         if (request.Disturbance is not null && DisturbanceCount == 0)
@@ -419,7 +434,8 @@ public sealed partial class CompiledModel
             rows is null || (rows.Length >= 1 && rows.Length <= horizon && Array.TrueForAll(rows, row => Ok(row, width, true)));
         return request is not null && Ok(request.State, StateCount, true) && Ok(request.Reference, OutputCount, false) && Ok(request.PreviousInput, InputCount, false)
             && Rows(request.ReferenceSchedule, OutputCount, Horizon) && (request.Disturbance is null || (DisturbanceCount > 0 && Rows(request.Disturbance, DisturbanceCount, Horizon)))
-            && !(request.Reference is not null && request.ReferenceSchedule is not null);
+            && !(request.Reference is not null && request.ReferenceSchedule is not null)
+            && (request.DisturbanceEstimate is null || (Estimator is not null && Ok(request.DisturbanceEstimate, Estimator.DisturbanceCount, true)));
     }
 
     /// <summary>A schedule or forecast: 1…N rows of <paramref name="width"/> finite numbers; the count is checked before the rows.</summary>

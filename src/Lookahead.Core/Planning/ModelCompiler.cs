@@ -140,7 +140,9 @@ public static class ModelCompiler
 
         var diagnostics = new ModelDiagnostics(rank, rank == n, stabilisable.Holds, detectable.Holds, openLoopRadius, riccati?.RelativeResidual, riccati?.Iterations, condition, closedLoopRadius, warnings);
         var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
-        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options) { DisturbanceInput = e };
+        // The estimator is designed on the discrete plant; measured disturbances enter its prediction as E v.
+        var estimator = model.Document.Estimator is { } spec ? Estimation.EstimatorDesign.Build(a, b, model.C, spec) : null;
+        return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options) { DisturbanceInput = e, Estimator = estimator };
     }
 
     /// <summary>Discretises a continuous plant, naming the field when the hold is out of range.</summary>

@@ -40,7 +40,8 @@ public sealed class OperatingPoint
         Minus(request.Reference, Output),
         Minus(request.PreviousInput, Input),
         request.ReferenceSchedule?.Select(row => Minus(row, Output)!).ToArray(),
-        request.Disturbance?.Select(row => Minus(row, Disturbance)!).ToArray());
+        request.Disturbance?.Select(row => Minus(row, Disturbance)!).ToArray(),
+        request.DisturbanceEstimate);
 
     /// <summary>Adds the offsets to the plan's trajectories and target, in place.</summary>
     public void ToEngineering(Plan plan)

@@ -188,6 +188,11 @@ public static class ModelValidator
         var operatingPoint = CheckOperatingPoint(document.OperatingPoint, n, m, p, Math.Max(disturbances, 0), errors);
         var validatedLimits = CheckLimits(document.Limits, m, p, errors);
         CheckLabels(document.Labels, n, m, p, Math.Max(disturbances, 0), errors);
+        if (document.Estimator is { } estimator && n > 0 && m > 0)
+        {
+            errors.AddRange(Estimation.EstimatorSpecValidator.Validate(estimator, n, m, p));
+        }
+
         if (errors.Count > 0)
         {
             return null;
