@@ -1,6 +1,7 @@
 using System.Text.Json.Serialization;
 using Lookahead.Api.Aliases;
 using Lookahead.Api.Catalog;
+using Lookahead.Api.Estimation;
 using Lookahead.Api.Models;
 using Lookahead.Api.Plans;
 using Lookahead.Api.Simulation;
@@ -27,4 +28,6 @@ namespace Lookahead.Api;
 [JsonSerializable(typeof(AliasResponse))]
 [JsonSerializable(typeof(SimulationRequestDto))]
 [JsonSerializable(typeof(SimulationResponse))]
+[JsonSerializable(typeof(EstimateRequestDto))]
+[JsonSerializable(typeof(EstimateResponse))]
 public sealed partial class ApiJsonContext : JsonSerializerContext;

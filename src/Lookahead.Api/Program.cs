@@ -1,5 +1,6 @@
 using Lookahead.Api;
 using Lookahead.Api.Aliases;
+using Lookahead.Api.Estimation;
 using Lookahead.Api.Hosting;
 using Lookahead.Api.Http;
 using Lookahead.Api.Models;
@@ -20,6 +21,7 @@ app.MapModelsApi();
 app.MapPlansApi();
 app.MapReplayApi();
 app.MapSimulationApi();
+app.MapEstimationApi();
 app.MapAliasesApi();
 app.MapHostingEndpoints();
 app.Run();

@@ -4,13 +4,22 @@ namespace Lookahead.Api.Catalog;
 
 /// <summary>A plant-and-cost model as sent by a client. Every field is optional here so that a missing one is reported by path, not by the parser.</summary>
 /// <param name="OperatingPoint">Engineering values the model was linearised at; with it, every value sent or received is in engineering units.</param>
+/// <param name="Estimator">An offset-free state estimator designed at registration; plans then accept its estimate instead of a measured state.</param>
 public sealed record ModelDocumentDto(
     string? Name,
     PlantDto? Plant,
     CostDto? Cost,
     LimitsDto? Limits,
     LabelsDto? Labels,
-    OperatingPointDto? OperatingPoint = null);
+    OperatingPointDto? OperatingPoint = null,
+    EstimatorDto? Estimator = null);
+
+/// <summary>
+/// Noise covariances for the steady-state Kalman gain — processNoise over the augmented state [x; d] (n + n_d
+/// entries or that square matrix), measurementNoise over the outputs (p or p×p) — and where the integrating
+/// disturbances enter: "output" (the default: n_d = p), "input" (n_d = m) or "none".
+/// </summary>
+public sealed record EstimatorDto(WeightDto? ProcessNoise, WeightDto? MeasurementNoise, string? DisturbanceModel);
 
 /// <summary>x_op (n), u_op (m), y_op (p) in engineering units; a missing part is zero.</summary>
 public sealed record OperatingPointDto(double[]? State, double[]? Input, double[]? Output, double[]? Disturbance = null)

@@ -16,6 +16,7 @@ public static class ModelDocumentMapping
         Limits = dto.Limits is { IsEmpty: true } ? null : dto.Limits,
         Labels = NormaliseLabels(dto.Labels),
         OperatingPoint = dto.OperatingPoint is { IsEmpty: true } ? null : dto.OperatingPoint,
+        Estimator = dto.Estimator is null ? null : dto.Estimator with { DisturbanceModel = dto.Estimator.DisturbanceModel ?? "output" },
     };
 
     /// <summary>Empty units and then empty labels become absent, so that they hash like documents without them.</summary>
@@ -62,7 +63,26 @@ public static class ModelDocumentMapping
             ? new LabelsSpec(names.States, names.Inputs, names.Outputs, names.Units is { } units ? new UnitsSpec(units.States, units.Inputs, units.Outputs, units.Disturbances) : null, names.Disturbances)
             : null;
         var point = dto.OperatingPoint is { } op ? new OperatingPointSpec(op.State, op.Input, op.Output, op.Disturbance) : null;
-        return new ModelDocument(dto.Name, plant, cost, limits, labels, point);
+        var estimator = dto.Estimator is { } e ? ToEstimator(e, errors) : null;
+        return new ModelDocument(dto.Name, plant, cost, limits, labels, point, estimator);
+    }
+
+    private static Lookahead.Core.Estimation.EstimatorSpec ToEstimator(EstimatorDto dto, List<ValidationError> errors)
+    {
+        var kind = dto.DisturbanceModel switch
+        {
+            null or "output" => Lookahead.Core.Estimation.DisturbanceModelKind.Output,
+            "input" => Lookahead.Core.Estimation.DisturbanceModelKind.Input,
+            "none" => Lookahead.Core.Estimation.DisturbanceModelKind.None,
+            _ => Invalid(),
+        };
+        return new Lookahead.Core.Estimation.EstimatorSpec(ToWeight(dto.ProcessNoise), ToWeight(dto.MeasurementNoise), kind);
+
+        Lookahead.Core.Estimation.DisturbanceModelKind Invalid()
+        {
+            errors.Add(new("estimator.disturbanceModel", "must be 'output', 'input' or 'none'"));
+            return Lookahead.Core.Estimation.DisturbanceModelKind.Output;
+        }
     }
 
     public static TimeDomain ParseTimeDomain(string? value, string path, List<ValidationError> errors)

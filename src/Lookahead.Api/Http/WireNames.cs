@@ -40,6 +40,8 @@ public static class WireNames
         WarningCode.HessianIllConditioned => "hessian-ill-conditioned",
         WarningCode.DisturbanceNotBalanced => "disturbance-not-balanced",
         WarningCode.DisturbanceTargetOutsideInputLimits => "disturbance-target-outside-input-limits",
+        WarningCode.MeasurementMissing => "measurement-missing",
+        WarningCode.EstimateInitialised => "estimate-initialised",
         _ => throw new ArgumentOutOfRangeException(nameof(code), code, "no wire name"),
     };
 }

@@ -14,6 +14,13 @@ public static class ModelResponses
 
     public static ModelDimensions Dimensions(int n, int m, int p, int horizon) => new(n, m, p, horizon, horizon * m);
 
+    public static DiagnosticsDto Diagnostics(CompiledModel model) => Diagnostics(model.Diagnostics) with
+    {
+        Estimator = model.Estimator is { } e
+            ? new EstimatorDiagnosticsDto(e.DisturbanceModel.ToString().ToLowerInvariant(), e.DisturbanceCount, e.SpectralRadius, e.Eigenvalues.Select(z => new ComplexDto(z.Real, z.Imaginary)).ToArray())
+            : null,
+    };
+
     public static DiagnosticsDto Diagnostics(ModelDiagnostics d) => new(
         d.ControllabilityRank,
         d.Controllable,
@@ -45,7 +52,7 @@ public static class ModelResponses
             ModelDocumentMapping.TimeDomainName(model.Document.Plant.TimeDomain),
             continuous ? model.DiscreteA : null,
             continuous ? model.DiscreteB : null,
-            Diagnostics(model.Diagnostics),
+            Diagnostics(model),
             WarningText.ToDtos(model.Diagnostics.Warnings));
     }
 
@@ -59,7 +66,7 @@ public static class ModelResponses
             Dimensions(model),
             continuous ? model.DiscreteA : null,
             continuous ? model.DiscreteB : null,
-            Diagnostics(model.Diagnostics),
+            Diagnostics(model),
             WarningText.ToDtos(model.Diagnostics.Warnings));
     }
 }

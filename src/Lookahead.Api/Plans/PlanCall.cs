@@ -14,8 +14,11 @@ public class PlanCall
     /// <param name="p">Outputs.</param>
     /// <param name="q">Measured disturbances (0: the model takes none).</param>
     /// <param name="horizon">N, the most rows a schedule or forecast may have.</param>
-    public PlanCall(int n, int m, int p, int q = 0, int horizon = 1)
+    /// <param name="estimatedDisturbances">n_d of the model's estimator (0: it has none, and a plan cannot take an estimate).</param>
+    public PlanCall(int n, int m, int p, int q = 0, int horizon = 1, int estimatedDisturbances = 0)
     {
+        DisturbanceEstimate = new double[estimatedDisturbances];
+        AcceptsEstimate = estimatedDisturbances > 0;
         State = new double[n];
         Reference = new double[p];
         PreviousInput = new double[m];
@@ -25,6 +28,14 @@ public class PlanCall
     }
 
     public int DisturbanceCount { get; }
+
+    /// <summary>d̂ of an "estimate" given instead of a measured state (its x̂ is in <see cref="State"/>).</summary>
+    public double[] DisturbanceEstimate { get; }
+
+    public bool HasDisturbanceEstimate { get; set; }
+
+    /// <summary>Whether the model has an estimator, so that a plan may start from its estimate.</summary>
+    public bool AcceptsEstimate { get; }
 
     public int Horizon { get; }
 
@@ -75,7 +86,8 @@ public class PlanCall
         HasReference ? Reference : null,
         HasPreviousInput ? PreviousInput : null,
         ReferenceRowCount > 0 ? ReferenceRows[..ReferenceRowCount] : null,
-        DisturbanceRowCount > 0 ? DisturbanceRows[..DisturbanceRowCount] : null);
+        DisturbanceRowCount > 0 ? DisturbanceRows[..DisturbanceRowCount] : null,
+        HasDisturbanceEstimate ? DisturbanceEstimate : null);
 
     private double[][]? referenceRows;
     private double[][]? disturbanceRows;
@@ -88,6 +100,7 @@ public class PlanCall
         HasPreviousInput = false;
         ReferenceRowCount = 0;
         DisturbanceRowCount = 0;
+        HasDisturbanceEstimate = false;
         Errors.Clear();
         SyntaxErrorAt = null;
         Plan = null;

@@ -26,7 +26,7 @@ public static class PlanRequestParser
                 return;
             }
 
-            bool sawState = false, sawReference = false, sawPrevious = false, sawDisturbance = false;
+            bool sawState = false, sawReference = false, sawPrevious = false, sawDisturbance = false, sawEstimate = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
                 if (reader.ValueTextEquals("state"u8))
@@ -45,6 +45,12 @@ public static class PlanRequestParser
                     var (isVector, rows) = ReadVectorOrRows(ref reader, row.Reference, () => row.ReferenceRows, pathPrefix + "reference", row);
                     row.HasReference = isVector;
                     row.ReferenceRowCount = rows;
+                }
+                else if (reader.ValueTextEquals("estimate"u8))
+                {
+                    Duplicate(ref sawEstimate, row, pathPrefix + "estimate");
+                    reader.Read();
+                    ReadEstimate(ref reader, row, pathPrefix + "estimate");
                 }
                 else if (reader.ValueTextEquals("disturbance"u8))
                 {
@@ -85,9 +91,13 @@ public static class PlanRequestParser
                 row.AddError(Trimmed(pathPrefix), "has content after the end of the object");
             }
 
-            if (!sawState)
+            if (sawState && sawEstimate)
             {
-                row.AddError(pathPrefix + "state", "is required");
+                row.AddError(pathPrefix + "estimate", "give a measured state or an estimate, not both");
+            }
+            else if (!sawState && !sawEstimate)
+            {
+                row.AddError(pathPrefix + "state", "is required (or an estimate from the model's estimator)");
             }
         }
         catch (JsonException ex)
@@ -197,6 +207,57 @@ public static class PlanRequestParser
         {
             row.AddError(path, $"has {count} entries; expected {target.Length}");
         }
+    }
+
+    /// <summary>{ "state": x̂, "disturbance": d̂ } of the model's estimator, into the call's state and disturbance estimate.</summary>
+    private static void ReadEstimate(ref Utf8JsonReader reader, PlanCall row, string path)
+    {
+        if (!row.AcceptsEstimate)
+        {
+            row.AddError(path, "the model has no estimator; send a measured state");
+            reader.Skip();
+            return;
+        }
+
+        if (reader.TokenType != JsonTokenType.StartObject)
+        {
+            row.AddError(path, "must be an object with 'state' and 'disturbance' arrays");
+            reader.Skip();
+            return;
+        }
+
+        bool state = false, disturbance = false;
+        while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
+        {
+            if (reader.ValueTextEquals("state"u8))
+            {
+                reader.Read();
+                state = ReadVector(ref reader, row.State, path + ".state", row);
+            }
+            else if (reader.ValueTextEquals("disturbance"u8))
+            {
+                reader.Read();
+                disturbance = ReadVector(ref reader, row.DisturbanceEstimate, path + ".disturbance", row);
+            }
+            else
+            {
+                row.AddError($"{path}.{reader.GetString()}", JsonErrorDescriber.UnknownField);
+                reader.Read();
+                reader.Skip();
+            }
+        }
+
+        if (!state)
+        {
+            row.AddError(path + ".state", "is required");
+        }
+
+        if (!disturbance)
+        {
+            row.AddError(path + ".disturbance", "is required (the estimator's disturbance estimate)");
+        }
+
+        row.HasDisturbanceEstimate = disturbance;
     }
 
     private static void Duplicate(ref bool seen, PlanCall row, string path)

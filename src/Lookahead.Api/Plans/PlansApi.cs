@@ -104,7 +104,7 @@ public static class PlansApi
             services.Request,
             bytes =>
             {
-                var call = new PlanCall(model.StateCount, model.InputCount, model.OutputCount, model.DisturbanceCount, model.Horizon);
+                var call = new PlanCall(model.StateCount, model.InputCount, model.OutputCount, model.DisturbanceCount, model.Horizon, model.Estimator?.DisturbanceCount ?? 0);
                 PlanRequestParser.Parse(bytes, call, "", depth);
                 if (call.SyntaxErrorAt is { } at)
                 {

@@ -5,12 +5,12 @@ internal sealed class ReplayBatch
 {
     private readonly ReplayRow[] rows;
 
-    public ReplayBatch(int capacity, int n, int m, int p, int q = 0, int horizon = 1)
+    public ReplayBatch(int capacity, int n, int m, int p, int q = 0, int horizon = 1, int estimatedDisturbances = 0)
     {
         rows = new ReplayRow[capacity];
         for (int i = 0; i < capacity; i++)
         {
-            rows[i] = new ReplayRow(n, m, p, q, horizon);
+            rows[i] = new ReplayRow(n, m, p, q, horizon, estimatedDisturbances);
         }
     }
 

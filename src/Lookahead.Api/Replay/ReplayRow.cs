@@ -7,7 +7,7 @@ namespace Lookahead.Api.Replay;
 /// One reusable slot of a replay batch: the row's raw bytes, the parsed vectors, the plan and the formatted
 /// result. Slots are recycled batch after batch, which is what keeps replay memory constant.
 /// </summary>
-internal sealed class ReplayRow(int n, int m, int p, int q, int horizon) : PlanCall(n, m, p, q, horizon)
+internal sealed class ReplayRow(int n, int m, int p, int q, int horizon, int estimatedDisturbances) : PlanCall(n, m, p, q, horizon, estimatedDisturbances)
 {
     public long Number { get; private set; }
 

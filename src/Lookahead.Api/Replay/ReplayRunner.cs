@@ -16,8 +16,8 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
     {
         int size = options.Value.BatchSize;
         int n = model.StateCount, m = model.InputCount, p = model.OutputCount;
-        var current = new ReplayBatch(size, n, m, p, model.DisturbanceCount, model.Horizon);
-        var spare = new ReplayBatch(size, n, m, p, model.DisturbanceCount, model.Horizon);
+        var current = new ReplayBatch(size, n, m, p, model.DisturbanceCount, model.Horizon, model.Estimator?.DisturbanceCount ?? 0);
+        var spare = new ReplayBatch(size, n, m, p, model.DisturbanceCount, model.Horizon, model.Estimator?.DisturbanceCount ?? 0);
         int workers = options.Value.MaxDegreeOfParallelism > 0 ? options.Value.MaxDegreeOfParallelism : Environment.ProcessorCount;
         var parallel = new ParallelOptions { MaxDegreeOfParallelism = workers, CancellationToken = cancellationToken };
         long rows = 0, failed = 0;

@@ -47,4 +47,10 @@ public enum WarningCode
 
     /// <summary>The steady state that balances the measured disturbance needs inputs outside their limits; the plan keeps the limits and steers toward it. Amount: the worst excess.</summary>
     DisturbanceTargetOutsideInputLimits,
+
+    /// <summary>The estimator had no measurement this sample: the estimate was propagated, not corrected.</summary>
+    MeasurementMissing,
+
+    /// <summary>No previous estimate was given: this one was fitted to the measurement at steady state, so its first plans rest on that assumption.</summary>
+    EstimateInitialised,
 }
