@@ -25,11 +25,12 @@ public class PlanPipelineTests
     // For the demo: warm and cold zones, with and without a previous input, some pressing on the limits.
     private static readonly (double[] State, double[]? Reference, double[]? Previous)[] DemoRequests =
     [
-        ([1.0, 0.5, 0.0], null, null),
-        ([3.0, 2.5, 2.0], null, [0.5, 0.5, 0.0]),
-        ([-1.0, 0.2, 0.4], [0.0, 0.0, 0.5], [0.1, 0.2, 0.3]),
-        ([2.0, -2.5, 1.5], [0.5, 0.5, 0.5], null),
-        ([6.0, 6.0, 6.0], null, [1.0, 1.0, 1.0]),
+        // The demo is in engineering units: zones in °C around −20, inputs in %.
+        ([-19.0, -19.5, -20.0], null, null),
+        ([-17.0, -17.5, -18.0], null, [50, 50, 0]),
+        ([-21.0, -19.8, -19.6], [-20.0, -20.0, -19.5], [10, 20, 30]),
+        ([-18.0, -22.5, -18.5], [-19.5, -19.5, -19.5], null),
+        ([-14.0, -14.0, -14.0], null, [100, 100, 100]),
     ];
 
     [Fact]
@@ -58,7 +59,9 @@ public class PlanPipelineTests
         string json = new JsonObject { ["requests"] = new JsonArray(bodies.Select(b => (JsonNode?)b.DeepClone()).ToArray()) }.ToJsonString();
 
         // Full depth takes the same solve as /plan; replay carries each worker's active limits from row to row (a warm
-        // start), which ends at the same optimum by another path: the same numbers to rounding (and /plan's 15 digits).
+        // start), which ends at the same optimum by another path: the same numbers to rounding (and /plan's 15 digits;
+        // a cost of 155 from a path through 40 active limits differs from the cold one by ~1e-12 relative, and an input
+        // on its 0 % bound can sit 6e-10 % off it — the solver's feasibility tolerance on a 0…100 window).
         var fullJson = Results(await (await client.PostJsonAsync($"/v1/models/{id}/plans?detail=full", json)).ReadJsonAsync());
         var fullNdjson = await LinesAsync(client.PostAsync($"/v1/models/{id}/plans?detail=full", ndjson, "application/x-ndjson"));
         foreach (var results in new[] { fullJson, fullNdjson })
@@ -66,8 +69,8 @@ public class PlanPipelineTests
             Assert.Equal(requests.Length, results.Count);
             for (int i = 0; i < requests.Length; i++)
             {
-                AssertClose([single[i].Cost], [results[i]["cost"]!.GetValue<double>()], 1e-12, $"row {i + 1} cost");
-                AssertClose(single[i].Move, results[i]["inputs"]!.Matrix()[0], 1e-12, $"row {i + 1}");
+                AssertClose([single[i].Cost], [results[i]["cost"]!.GetValue<double>()], 1e-11, $"row {i + 1} cost");
+                AssertClose(single[i].Move, results[i]["inputs"]!.Matrix()[0], 1e-9, $"row {i + 1}");
             }
         }
 

@@ -164,12 +164,12 @@ public class PlanTests
         await using var factory = new LookaheadFactory();
         var client = factory.CreateClient();
 
-        // A door left open: every zone warm, more cooling asked for than the chillers have.
-        var plan = await (await client.PostJsonAsync("/v1/aliases/cold-store-demo/plan", """{"state":[4,3,2],"previousInput":[0.5,0.5,0]}""")).ReadJsonAsync();
+        // A door left open: every zone warm (°C), more cooling asked for than the chillers have (inputs in %).
+        var plan = await (await client.PostJsonAsync("/v1/aliases/cold-store-demo/plan", """{"state":[-16,-17,-18],"previousInput":[50,50,0]}""")).ReadJsonAsync();
 
         foreach (var move in plan["inputs"]!.Matrix())
         {
-            Assert.All(move, u => Assert.InRange(u, -1e-9, 1 + 1e-9));
+            Assert.All(move, u => Assert.InRange(u, 0, 100));
         }
     }
 
@@ -178,20 +178,20 @@ public class PlanTests
     {
         await using var factory = new LookaheadFactory(new Dictionary<string, string?> { ["Planning:MaxSolverIterations"] = "3" });
         var client = factory.CreateClient();
-        double[] previous = [0.5, 0.5, 0.0];
+        double[] previous = [50, 50, 0.0];
 
         // The demo with every zone warm needs far more than three iterations.
-        var plan = await (await client.PostJsonAsync("/v1/aliases/cold-store-demo/plan", """{"state":[3,2.5,2],"previousInput":[0.5,0.5,0]}""")).ReadJsonAsync();
+        var plan = await (await client.PostJsonAsync("/v1/aliases/cold-store-demo/plan", """{"state":[-17,-17.5,-18],"previousInput":[50,50,0]}""")).ReadJsonAsync();
 
         Assert.Equal("iteration-limit", plan["status"]!.GetValue<string>());
         Assert.Contains(plan["warnings"]!.AsArray(), w => w!["code"]!.GetValue<string>() == "iteration-limit" && w["count"]!.GetValue<int>() == 3);
-        double[] rateMin = [-0.2, -0.2, -0.5], rateMax = [0.2, 0.2, 0.5];
+        double[] rateMin = [-20, -20, -50], rateMax = [20, 20, 50];
         foreach (var move in plan["inputs"]!.Matrix())
         {
             for (int i = 0; i < 3; i++)
             {
-                Assert.InRange(move[i], 0.0, 1.0);
-                Assert.InRange(move[i] - previous[i], rateMin[i] - 1e-12, rateMax[i] + 1e-12);
+                Assert.InRange(move[i], 0.0, 100.0);
+                Assert.InRange(move[i] - previous[i], rateMin[i] - 1e-10, rateMax[i] + 1e-10);
             }
 
             previous = move;

@@ -24,10 +24,13 @@ model = json.load(open(f"{folder}/model.json"))
 a, b = np.array(model["discreteA"]), np.array(model["discreteB"])
 k = np.array(json.load(open(f"{folder}/gain.json"))["k"])
 lim = model["document"]["limits"]
-umin, umax = np.array(lim["inputMin"]), np.array(lim["inputMax"])
+umin, umax = np.array(lim["inputMin"]), np.array(lim["inputMax"])  # engineering units; the loop below subtracts u_op
 dmin, dmax = np.array(lim["inputRateMin"]), np.array(lim["inputRateMax"])
 rng = np.random.default_rng(11)
 n, m = b.shape
+# The demo is in engineering units: the loop runs in deviations and the rows are written around the operating point.
+point = model["document"].get("operatingPoint", {})
+xop = np.array(point.get("state", [0.0] * n)); yop = np.array(point.get("output", [0.0] * n)); uop = np.array(point.get("input", [0.0] * m))
 x, u, r = np.zeros(n), np.zeros(m), np.zeros(n)
 load = np.zeros(n)
 header = ",".join(["timestamp", "zone_a_temp", "zone_b_temp", "zone_c_temp", "r_zone_a", "r_zone_b", "r_zone_c",
@@ -41,15 +44,15 @@ with open(f"{folder}/trajectory.csv", "w") as csv, open(f"{folder}/trajectory.nd
             r = rng.choice([-1.0, 0.0, 0.5], size=n)
         if step % 180 == 0:                     # doors opened and closed: a load step every 3 hours
             load = rng.uniform(0.0, 0.004, size=n)
-        csv.write(f"{step * 60},{fmt(x)},{fmt(r)},{fmt(u)}\n")
-        nd.write('{"state":[' + fmt(x) + '],"reference":[' + fmt(r) + '],"previousInput":[' + fmt(u) + ']}\n')
+        csv.write(f"{step * 60},{fmt(x + xop)},{fmt(r + yop)},{fmt(u + uop)}\n")
+        nd.write('{"state":[' + fmt(x + xop) + '],"reference":[' + fmt(r + yop) + '],"previousInput":[' + fmt(u + uop) + ']}\n')
         if step < random_rows:
-            xr, ur = rng.uniform(-1.0, 3.0, size=n), rng.uniform(0.0, 1.0, size=m)
-            rr = rng.choice([-1.0, 0.0, 0.5], size=n)
+            xr, ur = xop + rng.uniform(-1.0, 3.0, size=n), rng.uniform(umin, umax, size=m)
+            rr = yop + rng.choice([-1.0, 0.0, 0.5], size=n)
             rcsv.write(f"{step * 60},{fmt(xr)},{fmt(rr)},{fmt(ur)}\n")
             rnd.write('{"state":[' + fmt(xr) + '],"reference":[' + fmt(rr) + '],"previousInput":[' + fmt(ur) + ']}\n')
-        target = np.clip(u - k @ (x - r) * 0.5, umin, umax)
-        u = np.clip(np.clip(target, u + dmin, u + dmax), umin, umax)
+        target = np.clip(u - k @ (x - r) * 0.5, umin - uop, umax - uop)
+        u = np.clip(np.clip(target, u + dmin, u + dmax), umin - uop, umax - uop)
         x = a @ x + b @ u + load + rng.normal(0.0, 0.002, size=n)
 PY
 head -n 5001 "$work_dir/trajectory.ndjson" >"$work_dir/warm.ndjson"
