@@ -1,11 +1,14 @@
 namespace Lookahead.Api.Charts;
 
-/// <summary>How a series is drawn: measured/predicted values solid, setpoints dotted, limits dashed.</summary>
+/// <summary>How a series is drawn: measured/predicted values solid, setpoints dotted, limits dashed, estimates dash-dotted.</summary>
 public enum LineStyle
 {
     Solid,
     Dotted,
     Dashed,
+
+    /// <summary>Estimates drawn against the true values: unlike a limit's dashes and a setpoint's dots.</summary>
+    DashDot,
 }
 
 /// <summary>One line on a panel. A stepped series holds each value until the next sample (zero-order hold, as inputs are applied).</summary>

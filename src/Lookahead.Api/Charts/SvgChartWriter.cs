@@ -104,7 +104,7 @@ public static class SvgChartWriter
             writer.WriteAttributeString("stroke-width", series.Style == LineStyle.Solid ? "2" : "1.5");
             if (series.Style != LineStyle.Solid)
             {
-                writer.WriteAttributeString("stroke-dasharray", series.Style == LineStyle.Dashed ? "8 5" : "2 4");
+                writer.WriteAttributeString("stroke-dasharray", DashPattern(series.Style));
             }
 
             writer.WriteAttributeString("points", Points(series, X, Y));
@@ -134,7 +134,7 @@ public static class SvgChartWriter
             writer.WriteAttributeString("stroke-width", "2");
             if (series.Style != LineStyle.Solid)
             {
-                writer.WriteAttributeString("stroke-dasharray", series.Style == LineStyle.Dashed ? "8 5" : "2 4");
+                writer.WriteAttributeString("stroke-dasharray", DashPattern(series.Style));
             }
 
             writer.WriteEndElement();
@@ -221,6 +221,13 @@ public static class SvgChartWriter
     }
 
     private static void Attr(XmlWriter writer, string name, double value) => writer.WriteAttributeString(name, Format(value));
+
+    private static string DashPattern(LineStyle style) => style switch
+    {
+        LineStyle.Dashed => "8 5",
+        LineStyle.DashDot => "6 3 2 3",
+        _ => "2 4",
+    };
 
     private static string TickLabel(double value) => value.ToString("G4", CultureInfo.InvariantCulture);
 

@@ -3,8 +3,9 @@ using Lookahead.Core.Planning;
 namespace Lookahead.Api.Charts;
 
 /// <summary>
-/// Builds the two-panel chart used for plans and simulations: outputs with their setpoints (dotted) and soft
-/// limits (dashed) on top, inputs as held steps with their hard limits (dashed) below.
+/// Builds the two-panel chart used for plans and simulations: outputs with their setpoints (dotted), soft limits
+/// (dashed) and, for a simulation with feedback from an estimator, the estimated outputs (dash-dotted) on top, inputs
+/// as held steps with their hard limits (dashed) below.
 /// </summary>
 public static class TrajectoryChart
 {
@@ -14,7 +15,8 @@ public static class TrajectoryChart
     /// <param name="outputs">Rows of p, one per sample (steps + 1).</param>
     /// <param name="inputs">Rows of m, one per move (steps).</param>
     /// <param name="references">Rows of p per move, or null when no setpoint was given.</param>
-    public static Chart Build(string title, CompiledModel model, double[][] outputs, double[][] inputs, double[][]? references)
+    /// <param name="estimatedOutputs">Rows of p, one per sample, of the outputs as an estimator sees them, drawn dash-dotted against the true ones; null for none.</param>
+    public static Chart Build(string title, CompiledModel model, double[][] outputs, double[][] inputs, double[][]? references, double[][]? estimatedOutputs = null)
     {
         int steps = inputs.Length;
         var labels = ChartLabels.For(model, steps);
@@ -26,6 +28,11 @@ public static class TrajectoryChart
         for (int j = 0; j < model.OutputCount; j++)
         {
             outputSeries.Add(new ChartSeries(labels.Outputs[j], sampleTimes, Column(outputs, j), j));
+        }
+
+        for (int j = 0; j < model.OutputCount && estimatedOutputs is not null; j++)
+        {
+            outputSeries.Add(new ChartSeries($"{labels.Outputs[j]} estimate", labels.Times(estimatedOutputs.Length), Column(estimatedOutputs, j), j, LineStyle.DashDot));
         }
 
         for (int j = 0; j < model.OutputCount && references is not null; j++)

@@ -64,7 +64,7 @@ public static class SimulationApi
 
         if (responseFormat == ResponseFormat.Svg)
         {
-            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References);
+            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
         }
 

@@ -59,7 +59,65 @@ public static class SimulationMapping
             truePlant = new PlantSpec(plant.A!, plant.B!, null, model.SampleTime, domain);
         }
 
-        return new SimulationRequest(dto.InitialState!, dto.Steps ?? 0, references, truePlant, dto.Disturbances, dto.PreviousInput);
+        var measured = Schedule(dto.MeasuredDisturbances, "measuredDisturbances", "disturbance", c => c?.FromStep, c => c?.Disturbance, (from, v) => new MeasuredDisturbanceChange(from, v), errors);
+        var offsets = Schedule(dto.OutputDisturbance, "outputDisturbance", "offset", c => c?.FromStep, c => c?.Offset, (from, v) => new OutputDisturbanceChange(from, v), errors);
+        var feedback = ParseFeedback(dto.Feedback, errors);
+        MeasurementNoise? noise = null;
+        if (dto.MeasurementNoise is { } spec)
+        {
+            if (spec.StandardDeviation is null)
+            {
+                errors.Add(new("measurementNoise.standardDeviation", $"is required ({model.OutputCount} entries, one per output)"));
+            }
+
+            noise = new MeasurementNoise(spec.StandardDeviation!, spec.Seed ?? 0);
+        }
+
+        return new SimulationRequest(dto.InitialState!, dto.Steps ?? 0, references, truePlant, dto.Disturbances, dto.PreviousInput, measured, offsets, feedback, noise);
+    }
+
+    /// <summary>A schedule of {fromStep, vector} changes; the core checks steps and widths, this only names what is missing.</summary>
+    private static List<TCore>? Schedule<TDto, TCore>(
+        TDto[]? changes, string path, string vectorName, Func<TDto?, int?> fromStep, Func<TDto?, double[]?> vector,
+        Func<int, double[], TCore> create, List<ValidationError> errors)
+    {
+        if (changes is null)
+        {
+            return null;
+        }
+
+        // Bounded by the body and array limits already; the core refuses more changes than steps.
+        var result = new List<TCore>(changes.Length);
+        for (int i = 0; i < changes.Length; i++)
+        {
+            if (fromStep(changes[i]) is null)
+            {
+                errors.Add(new($"{path}[{i}].fromStep", "is required"));
+            }
+
+            if (vector(changes[i]) is null)
+            {
+                errors.Add(new($"{path}[{i}].{vectorName}", "is required"));
+            }
+
+            result.Add(create(fromStep(changes[i]) ?? 0, vector(changes[i])!));
+        }
+
+        return result;
+    }
+
+    private static SimulationFeedback ParseFeedback(string? feedback, List<ValidationError> errors)
+    {
+        switch (feedback)
+        {
+            case null or "state":
+                return SimulationFeedback.State;
+            case "estimate":
+                return SimulationFeedback.Estimate;
+            default:
+                errors.Add(new("feedback", "must be \"state\" (plan from the true state) or \"estimate\" (plan from the model's estimator)"));
+                return SimulationFeedback.State;
+        }
     }
 
     public static SimulationResponse ToResponse(string id, CompiledModel model, SimulationResult result) => new(
@@ -72,5 +130,9 @@ public static class SimulationMapping
         result.References,
         result.TotalCost,
         result.NonOptimalSteps,
-        WarningText.ToDtos(result.Warnings));
+        WarningText.ToDtos(result.Warnings),
+        result.Measurements,
+        result.Estimates,
+        result.DisturbanceEstimates,
+        result.EstimatedOutputs);
 }
