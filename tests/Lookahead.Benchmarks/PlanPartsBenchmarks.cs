@@ -95,7 +95,7 @@ public class PlanPartsBenchmarks
 
     /// <summary>J on the rolled-out trajectory (TrajectoryEvaluator.Cost).</summary>
     [Benchmark]
-    public double Cost() => model.Trajectory.Cost(plan.Inputs, plan.States, plan.Outputs, model.Horizon, default, targetState, targetInput, default);
+    public double Cost() => model.Trajectory.Cost(plan.Inputs, plan.States, plan.Outputs, model.Horizon, ReadOnlySpan<double>.Empty, targetState, targetInput, default);
 
     /// <summary>Rollout, outputs and cost together (TrajectoryEvaluator.Evaluate, as the plan calls it).</summary>
     [Benchmark]

@@ -19,5 +19,11 @@ public sealed record CompileOptions
     /// <summary>Condition number above which the Hessian is reported as ill-conditioned: beyond 1e10 a plan keeps fewer than six of double's sixteen digits.</summary>
     public double IllConditionedThreshold { get; init; } = 1e10;
 
+    /// <summary>
+    /// Cache the stacked-preview maps when they fit (<see cref="PreviewMaps.Fits"/>); false answers every preview by
+    /// the Newton step, which tests use to hold the two paths to the same references.
+    /// </summary>
+    public bool CachePreviewMaps { get; init; } = true;
+
     public static CompileOptions Default { get; } = new();
 }

@@ -5,16 +5,15 @@ using Lookahead.Core.Validation;
 namespace Lookahead.Core.Planning;
 
 /// <summary>
-/// Plans with a reference schedule or measured disturbances (<see cref="PlanRequest.HasPreview"/>).
+/// Plans with a reference schedule, measured disturbances or an estimate's disturbance (<see cref="PlanRequest.HasPreview"/>).
 /// <para>
-/// The cached gains answer the problem with the last setpoint r̄ held, no disturbance and the target (x_s, u_s) of
-/// (r̄, v̄). The true problem differs from it only in its linear term (the per-stage r_k and the drive E v_k enter J
-/// linearly in U), so one Newton step from the gains' answer, U ← U − H⁻¹g with g the adjoint gradient of the true
-/// J on the true trajectory, is its exact minimiser; an ill-conditioned model takes the same refinement steps as
-/// any plan. Limits then start from that optimum, with the output rows moved by C d_k, d_k the disturbance's free
-/// response. This costs one rollout, one adjoint sweep and two triangular solves beyond the plain plan, and no
-/// cached map grows with the preview (an N·m × N·(p + q) map per variant would, and would be refused for the
-/// largest models).
+/// The per-stage r_k and the drive E v_k enter J linearly in U, so the unconstrained optimum stays a product with
+/// cached maps: the model's gains with the target (x_s, u_s) of the last rows (r̄, v̄), plus the stacked-preview maps
+/// K_R, K_V (<see cref="PreviewMaps"/>). Where those maps would be too large, and for an input-disturbance estimate
+/// (whose drive B d̂ has no map), one Newton step from the gains' answer for r̄ held, U ← U − H⁻¹g with g the adjoint
+/// gradient of the true J on the true trajectory, reaches the same exact minimiser for one rollout, one adjoint
+/// sweep and two triangular solves. Limits then start from that optimum, with the output rows moved by C d_k,
+/// d_k the disturbance's free response.
 /// </para>
 /// </summary>
 public sealed partial class CompiledModel
@@ -61,14 +60,28 @@ public sealed partial class CompiledModel
             warnings.Add(new Warning(limited ? WarningCode.SetpointOutsideInputLimits : WarningCode.SetpointUnreachable) { Amount = plan.Target.OutputError });
         }
 
-        // The gains' answer for r̄ held and no disturbance, then the exact step to the true problem.
-        gains.Apply(request.State, shiftedReference, targetState, targetInput, request.PreviousInput, plan.Inputs);
+        // With the stacked-preview maps: a product, U* = −(K z + K_R R + K_V V) (z with r = 0: the schedule is in R).
+        // Without them (a large model, or an input disturbance estimate): the gains' answer for r̄ held and no
+        // disturbance, then the exact Newton step to the true problem. Ill-conditioned models refine either.
         var stageReferences = new StageReferences(references, references.Length == 0 ? 0 : p);
+        var maps = inputShift is null ? PreviewFor(request.PreviousInput is not null) : null;
+        int newtonSteps = refine ? RefinementSteps : 1;
+        if (maps is not null)
+        {
+            gains.Apply(request.State, new double[p], targetState, targetInput, request.PreviousInput, plan.Inputs);
+            maps.Apply(references, Expand(request.Disturbance, q, horizon), plan.Inputs);
+            newtonSteps = refine ? RefinementSteps : 0;
+        }
+        else
+        {
+            gains.Apply(request.State, shiftedReference, targetState, targetInput, request.PreviousInput, plan.Inputs);
+        }
+
         var gradient = ArrayPool<double>.Shared.Rent(DecisionVariables);
         try
         {
             var g = gradient.AsSpan(0, DecisionVariables);
-            for (int pass = 0; pass < (refine ? RefinementSteps : 1); pass++)
+            for (int pass = 0; pass < newtonSteps; pass++)
             {
                 trajectory.Evaluate(plan, request.State, stageReferences, drives, targetState, targetInput, request.PreviousInput);
                 trajectory.Gradient(plan.Inputs, plan.States, plan.Outputs, horizon, stageReferences, targetState, targetInput, request.PreviousInput, g);

@@ -30,6 +30,8 @@ public sealed partial class CompiledModel
     private readonly InteriorPointProblem? interiorPoint;
     private double[][] discreteE = [];
     private double[] eColumnMajor = [];
+    private PreviewMaps? previewWithout;
+    private PreviewMaps? previewWith;
 
     /// <summary>Above this Hessian condition number every plan takes refinement steps: below it, cond·ε ≲ 1e-10 and the condensed solve alone is accurate.</summary>
     internal const double RefinementCondition = 1e6;
@@ -112,15 +114,22 @@ public sealed partial class CompiledModel
     /// <summary>E after zero-order hold together with B (or as given), as rows of q; q = 0 without measured disturbances.</summary>
     public double[][] DiscreteE => discreteE;
 
-    /// <summary>The discrete E (n×q) the compiler hands over.</summary>
+    /// <summary>The discrete E (n×q) the compiler hands over; also builds the preview maps, which need it.</summary>
     internal Matrix<double> DisturbanceInput
     {
         init
         {
             discreteE = Enumerable.Range(0, value.RowCount).Select(i => Enumerable.Range(0, value.ColumnCount).Select(j => value[i, j]).ToArray()).ToArray();
             eColumnMajor = value.ToColumnMajorArray();
+            if (Options.CachePreviewMaps && PreviewMaps.Fits(Horizon, InputCount, OutputCount, value.ColumnCount))
+            {
+                (previewWithout, previewWith) = PreviewMaps.Build(trajectory, withoutPrevious, withPrevious, eColumnMajor, StateCount, InputCount, OutputCount, value.ColumnCount, Horizon);
+            }
         }
     }
+
+    /// <summary>Stacked-preview maps of each variant, or null when they would be too large (see <see cref="PreviewMaps.Fits"/>).</summary>
+    internal PreviewMaps? PreviewFor(bool withPreviousInput) => withPreviousInput ? previewWith : previewWithout;
 
     /// <summary>The offset-free estimator designed at registration, or null when the model has none.</summary>
     public Estimation.Estimator? Estimator { get; init; }
@@ -149,6 +158,7 @@ public sealed partial class CompiledModel
     public long EstimatedBytes =>
         withoutPrevious.Bytes + (ReferenceEquals(withPrevious, withoutPrevious) ? 0 : withPrevious.Bytes)
         + (constrainedWithoutPrevious?.Bytes ?? 0) + (ReferenceEquals(constrainedWithPrevious, constrainedWithoutPrevious) ? 0 : constrainedWithPrevious?.Bytes ?? 0)
+        + (previewWithout?.Bytes ?? 0) + (ReferenceEquals(previewWith, previewWithout) ? 0 : previewWith?.Bytes ?? 0)
         + FixedOverheadBytes;
 
     /// <summary>True when cold limited plans go to the interior-point solver first (see <see cref="ModelCompiler"/>).</summary>

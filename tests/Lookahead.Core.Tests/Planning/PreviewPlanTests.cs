@@ -21,13 +21,18 @@ public class PreviewPlanTests
     public static IEnumerable<object[]> Refused =>
         Fixtures.Load(File).GetProperty("refused").EnumerateArray().Select(r => new object[] { r.GetProperty("name").GetString()! });
 
+    public static IEnumerable<object[]> CasesBothWays =>
+        Fixtures.CaseNames(File).SelectMany(c => new[] { new object[] { c[0], true }, new object[] { c[0], false } });
+
+    // Both ways of answering a preview: the cached stacked-preview maps, and the Newton step used where they do not fit.
     [Theory]
-    [MemberData(nameof(Cases))]
-    public void MatchesCvxoptWithTimeVaryingReferencesAndDisturbances(string name)
+    [MemberData(nameof(CasesBothWays))]
+    public void MatchesCvxoptWithTimeVaryingReferencesAndDisturbances(string name, bool maps)
     {
         var c = Fixtures.Case(File, name);
         double? rho = c.TryGetProperty("linearViolationWeight", out var w) ? w[0].GetDouble() : null;
-        var model = ModelCompiler.Compile(c.Model(), new CompileOptions { SoftLimitLinearWeight = rho });
+        var model = ModelCompiler.Compile(c.Model(), new CompileOptions { SoftLimitLinearWeight = rho, CachePreviewMaps = maps });
+        Assert.Equal(maps, model.PreviewFor(false) is not null);
         var request = Request(c);
         var plan = model.Plan(request);
 
