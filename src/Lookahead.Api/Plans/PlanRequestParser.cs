@@ -109,7 +109,8 @@ public static class PlanRequestParser
     }
 
     /// <summary>Reads an array into <paramref name="target"/>; false for null (absent). Length and entries are checked.</summary>
-    private static bool ReadVector(ref Utf8JsonReader reader, double[] target, string path, PlanCall row)
+    /// <remarks>Shared with replay's estimation rows, which read the same vectors under other field names.</remarks>
+    internal static bool ReadVector(ref Utf8JsonReader reader, double[] target, string path, PlanCall row)
     {
         if (reader.TokenType == JsonTokenType.Null)
         {
@@ -132,7 +133,7 @@ public static class PlanRequestParser
     /// Reads one vector (into <paramref name="vector"/>) or an array of rows (into the rows <paramref name="rows"/> gives,
     /// at most as many as it has: the horizon). Returns whether a vector was read and how many rows; (false, 0) for null.
     /// </summary>
-    private static (bool IsVector, int Rows) ReadVectorOrRows(ref Utf8JsonReader reader, double[] vector, Func<double[][]> rows, string path, PlanCall row)
+    internal static (bool IsVector, int Rows) ReadVectorOrRows(ref Utf8JsonReader reader, double[] vector, Func<double[][]> rows, string path, PlanCall row)
     {
         if (reader.TokenType == JsonTokenType.Null)
         {
@@ -260,7 +261,7 @@ public static class PlanRequestParser
         row.HasDisturbanceEstimate = disturbance;
     }
 
-    private static void Duplicate(ref bool seen, PlanCall row, string path)
+    internal static void Duplicate(ref bool seen, PlanCall row, string path)
     {
         if (seen)
         {

@@ -6,8 +6,9 @@ using Lookahead.Api.Http;
 namespace Lookahead.Api.Replay;
 
 /// <summary>
-/// Pass-through columns, then the first move (one column per input), cost, status and message (the errors of a
-/// bad row, or the warnings of a plan that is not a clean optimum). Numbers are formatted on the planning threads;
+/// Pass-through columns, then the first move (one column per input), the estimate in an estimation replay (xhat…,
+/// dhat…), cost, status and message (the errors of a bad row, or the warnings of the estimate and of a plan that is not
+/// a clean optimum). Numbers are formatted on the planning threads;
 /// CsvHelper quotes and writes, one batch at a time, into a buffer that is then copied to the response.
 /// </summary>
 internal sealed class CsvSink : IReplaySink, IAsyncDisposable
@@ -31,7 +32,7 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
             csv.WriteField(name);
         }
 
-        foreach (var name in layout.MoveNames)
+        foreach (var name in layout.MoveNames.Concat(layout.EstimateNames))
         {
             csv.WriteField(name);
         }
@@ -58,6 +59,19 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
             FormatNumber(row, u);
         }
 
+        if (row.Estimate is { } estimate)
+        {
+            foreach (double x in estimate.State)
+            {
+                FormatNumber(row, x);
+            }
+
+            foreach (double d in estimate.Disturbance)
+            {
+                FormatNumber(row, d);
+            }
+        }
+
         FormatNumber(row, outcome.Cost);
     }
 
@@ -79,11 +93,11 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
                 }
 
                 csv.WriteField(WireNames.Status(outcome.Status));
-                csv.WriteField(Describe(outcome.Warnings));
+                csv.WriteField(Describe(row.EstimationWarnings, outcome.Warnings));
             }
             else
             {
-                for (int i = 0; i <= layout.MoveNames.Length; i++)
+                for (int i = 0; i <= layout.MoveNames.Length + layout.EstimateNames.Length; i++)
                 {
                     csv.WriteField(""u8);
                 }
@@ -115,16 +129,16 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
         row.OutputFields.Add((start, written));
     }
 
-    /// <summary>The message column of a planned row: each warning as "code: sentence", separated by "; ".</summary>
-    private static string Describe(IReadOnlyList<Lookahead.Core.Planning.Warning> warnings)
+    /// <summary>The message column of a planned row: each warning (the estimator's first) as "code: sentence", separated by "; ".</summary>
+    private static string Describe(IReadOnlyList<Lookahead.Core.Planning.Warning> estimation, IReadOnlyList<Lookahead.Core.Planning.Warning> plan)
     {
-        if (warnings.Count == 0)
+        if (estimation.Count == 0 && plan.Count == 0)
         {
             return "";
         }
 
         var text = new StringBuilder();
-        foreach (var warning in warnings)
+        foreach (var warning in estimation.Concat(plan))
         {
             if (text.Length > 0)
             {

@@ -23,6 +23,13 @@ internal sealed class CsvSource : IReplaySource, IAsyncDisposable
 
     public CsvLayout Layout { get; }
 
+    /// <summary>Decided by the header (<see cref="CsvLayout.Mode"/>).</summary>
+    public ReplayMode Mode => Layout.Mode;
+
+    public IReadOnlyList<ProblemError> ChooseMode(ReplayBatch first, CompiledModel model) => [];
+
+    public string PathPrefix(ReplayRow row) => "";
+
     /// <summary>Reads the header; a missing state column is refused here, before any row is processed.</summary>
     public static async Task<(CsvSource? Source, IReadOnlyList<ProblemError> Errors)> OpenAsync(Stream body, CompiledModel model, int maxRowBytes, CancellationToken cancellationToken)
     {
@@ -107,13 +114,33 @@ internal sealed class CsvSource : IReplaySource, IAsyncDisposable
             return;
         }
 
-        for (int i = 0; i < Layout.State.Length; i++)
+        if (Layout.Mode == ReplayMode.Measurements)
         {
-            ReadNumber(row, Layout.State[i], Layout.StateNames[i], $"state[{i}]", row.State, i, allowEmpty: false);
+            // All measurement cells empty: the reading is missing, and the estimate is only propagated.
+            row.HasMeasurement = ReadOptionalGroup(row, Layout.Measurement, Layout.MeasurementNames, "measurement", row.Measurement);
+            ReadRequiredGroup(row, Layout.Applied, Layout.AppliedNames, "appliedInput", row.AppliedInput);
+        }
+        else
+        {
+            ReadRequiredGroup(row, Layout.State, Layout.StateNames, "state", row.State);
+            row.HasPreviousInput = ReadOptionalGroup(row, Layout.Previous, Layout.PreviousNames, "previousInput", row.PreviousInput);
         }
 
         row.HasReference = ReadOptionalGroup(row, Layout.Reference, Layout.ReferenceNames, "reference", row.Reference);
-        row.HasPreviousInput = ReadOptionalGroup(row, Layout.Previous, Layout.PreviousNames, "previousInput", row.PreviousInput);
+
+        // One row of v, held over the horizon (in an estimation replay also the v of the interval ending at this row).
+        if (Layout.Disturbance is not null)
+        {
+            row.DisturbanceRowCount = ReadOptionalGroup(row, Layout.Disturbance, Layout.DisturbanceNames, "disturbance", row.DisturbanceRows[0]) ? 1 : 0;
+        }
+    }
+
+    private static void ReadRequiredGroup(ReplayRow row, int[] columns, string[] names, string field, double[] target)
+    {
+        for (int i = 0; i < columns.Length; i++)
+        {
+            ReadNumber(row, columns[i], names[i], $"{field}[{i}]", target, i, allowEmpty: false);
+        }
     }
 
     public ValueTask DisposeAsync() => csv.DisposeAsync();

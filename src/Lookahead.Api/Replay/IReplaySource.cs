@@ -1,4 +1,5 @@
 using Lookahead.Api.Http;
+using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;
 
@@ -8,8 +9,20 @@ internal interface IReplaySource
     /// <summary>Fills the batch with the next rows; false when the input has ended and nothing was added.</summary>
     ValueTask<bool> FillAsync(ReplayBatch batch, CancellationToken cancellationToken);
 
+    /// <summary>What the rows carry; fixed by <see cref="ChooseMode"/> before any row is parsed.</summary>
+    ReplayMode Mode { get; }
+
+    /// <summary>
+    /// Fixes <see cref="Mode"/> from the first batch (CSV: from its header, already read). Runs before any result is
+    /// written, so its errors are the whole request's (400).
+    /// </summary>
+    IReadOnlyList<ProblemError> ChooseMode(ReplayBatch first, CompiledModel model);
+
     /// <summary>Turns the row's raw bytes into its vectors, or records its errors. Thread-safe.</summary>
     void Parse(ReplayRow row);
+
+    /// <summary>Where the row sits in the body, prepended to its field paths ("" or "requests[3].").</summary>
+    string PathPrefix(ReplayRow row);
 }
 
 /// <summary>Where replay results go. Formatting a row may run on any thread; writing is sequential, in input order.</summary>
@@ -30,3 +43,6 @@ internal interface IReplaySink
 
 /// <summary>Totals written at the end where the format has room for them.</summary>
 internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<WarningDto> Warnings);
+
+/// <summary>A replay's end: its totals, or the errors that refused it before any result was written.</summary>
+internal sealed record ReplayRun(ReplaySummary? Summary, IReadOnlyList<ProblemError> Errors);

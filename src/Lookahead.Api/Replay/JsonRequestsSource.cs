@@ -3,6 +3,7 @@ using System.IO.Pipelines;
 using System.Text.Json;
 using Lookahead.Api.Http;
 using Lookahead.Api.Plans;
+using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;
 
@@ -30,6 +31,17 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
     private bool sawRequests;
 
     public string? Detail { get; private set; }
+
+    public ReplayMode Mode { get; private set; }
+
+    public IReadOnlyList<ProblemError> ChooseMode(ReplayBatch first, CompiledModel model)
+    {
+        var (mode, errors) = ReplayModeProbe.Choose(first, model, PathPrefix, maxDepth);
+        Mode = mode;
+        return errors;
+    }
+
+    public string PathPrefix(ReplayRow row) => $"requests[{row.Number - 1}].";
 
     public List<WarningDto> Warnings { get; } = [];
 
@@ -69,9 +81,18 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
 
     public void Parse(ReplayRow row)
     {
-        if (row.Errors.Count == 0)
+        if (row.Errors.Count > 0)
         {
-            PlanRequestParser.Parse(row.RawSpan, row, $"requests[{row.Number - 1}].", maxDepth);
+            return;
+        }
+
+        if (Mode == ReplayMode.Measurements)
+        {
+            EstimationRowParser.Parse(row.RawSpan, row, PathPrefix(row), maxDepth);
+        }
+        else
+        {
+            PlanRequestParser.Parse(row.RawSpan, row, PathPrefix(row), maxDepth);
         }
     }
 

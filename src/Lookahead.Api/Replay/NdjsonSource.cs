@@ -1,6 +1,8 @@
 using System.Buffers;
 using System.IO.Pipelines;
+using Lookahead.Api.Http;
 using Lookahead.Api.Plans;
+using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;
 
@@ -10,6 +12,17 @@ internal sealed class NdjsonSource(PipeReader reader, int maxRowBytes, int maxDe
     private long line;
     private bool ended;
     private bool skippingLongLine;
+
+    public ReplayMode Mode { get; private set; }
+
+    public IReadOnlyList<ProblemError> ChooseMode(ReplayBatch first, CompiledModel model)
+    {
+        var (mode, errors) = ReplayModeProbe.Choose(first, model, PathPrefix, maxDepth);
+        Mode = mode;
+        return errors;
+    }
+
+    public string PathPrefix(ReplayRow row) => "";
 
     public async ValueTask<bool> FillAsync(ReplayBatch batch, CancellationToken cancellationToken)
     {
@@ -80,7 +93,16 @@ internal sealed class NdjsonSource(PipeReader reader, int maxRowBytes, int maxDe
 
     public void Parse(ReplayRow row)
     {
-        if (row.Errors.Count == 0)
+        if (row.Errors.Count > 0)
+        {
+            return;
+        }
+
+        if (Mode == ReplayMode.Measurements)
+        {
+            EstimationRowParser.Parse(row.RawSpan, row, "", maxDepth);
+        }
+        else
         {
             PlanRequestParser.Parse(row.RawSpan, row, "", maxDepth);
         }

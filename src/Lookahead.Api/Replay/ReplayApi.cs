@@ -8,7 +8,8 @@ namespace Lookahead.Api.Replay;
 
 /// <summary>
 /// Replay for historians: many states in, one result per state out, streamed in both directions, as JSON,
-/// NDJSON or CSV (chosen by Content-Type; the answer has the same type).
+/// NDJSON or CSV (chosen by Content-Type; the answer has the same type). For a model with an estimator the rows may
+/// carry measurements and applied inputs instead: the estimator then runs through them in order.
 /// </summary>
 public static class ReplayApi
 {
@@ -79,7 +80,7 @@ public static class ReplayApi
         int maxRow = limits.Value.MaxReplayRowBytes;
         int maxDepth = limits.Value.MaxJsonDepth;
         var response = context.Response;
-        ReplaySummary summary;
+        ReplayRun run;
         switch (format)
         {
             case "csv":
@@ -94,7 +95,7 @@ public static class ReplayApi
                 {
                     response.ContentType = CsvContentType + "; charset=utf-8";
                     await using var sink = new CsvSink(response.Body, source.Layout);
-                    summary = await runner.RunAsync(source, sink, model!, format, cancellationToken);
+                    run = await runner.RunAsync(source, sink, model!, format, cancellationToken);
                 }
 
                 break;
@@ -105,7 +106,7 @@ public static class ReplayApi
                 var reader = PipeReader.Create(body);
                 response.ContentType = NdjsonContentType;
                 var source = new NdjsonSource(reader, maxRow, maxDepth);
-                summary = await runner.RunAsync(source, new NdjsonSink(response.BodyWriter, queryDetail), model!, format, cancellationToken);
+                run = await runner.RunAsync(source, new NdjsonSink(response.BodyWriter, queryDetail), model!, format, cancellationToken);
                 await reader.CompleteAsync();
                 break;
             }
@@ -127,10 +128,15 @@ public static class ReplayApi
 
                 response.ContentType = JsonContentType + "; charset=utf-8";
                 var sink = new JsonResultsSink(response.BodyWriter, id, () => chosen, () => source.Warnings);
-                summary = await runner.RunAsync(source, sink, model!, format, cancellationToken);
+                run = await runner.RunAsync(source, sink, model!, format, cancellationToken);
                 await reader.CompleteAsync();
                 break;
             }
+        }
+
+        if (run.Summary is not { } summary)
+        {
+            return ApiProblems.Validation(run.Errors, "The first row decides what every row carries (a state, or a measurement with its applied input); no row was processed.");
         }
 
         log.Set("ReplayRows", summary.Rows);

@@ -1,5 +1,7 @@
 using System.Buffers;
 using Lookahead.Api.Plans;
+using Lookahead.Core.Estimation;
+using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Replay;
 
@@ -9,6 +11,21 @@ namespace Lookahead.Api.Replay;
 /// </summary>
 internal sealed class ReplayRow(int n, int m, int p, int q, int horizon, int estimatedDisturbances) : PlanCall(n, m, p, q, horizon, estimatedDisturbances)
 {
+    /// <summary>Estimation replay: y of this row (p); valid when <see cref="HasMeasurement"/>.</summary>
+    public double[] Measurement { get; } = new double[p];
+
+    /// <summary>Estimation replay: false when the row's reading is missing (the estimate is then only propagated).</summary>
+    public bool HasMeasurement { get; set; }
+
+    /// <summary>Estimation replay: the input held over the interval that ends at this row's measurement (m).</summary>
+    public double[] AppliedInput { get; } = new double[m];
+
+    /// <summary>Estimation replay: the corrected estimate this row was planned from; null in a plain replay or when it failed.</summary>
+    public StateEstimate? Estimate { get; set; }
+
+    /// <summary>Estimation replay: what the estimator says about this row (missing measurement, a fresh start), written before the plan's warnings.</summary>
+    public List<Warning> EstimationWarnings { get; } = [];
+
     public long Number { get; private set; }
 
     public byte[] Raw { get; private set; } = new byte[512];
@@ -34,6 +51,9 @@ internal sealed class ReplayRow(int n, int m, int p, int q, int horizon, int est
         RawLength = 0;
         Fields.Clear();
         ResetCall();
+        HasMeasurement = false;
+        Estimate = null;
+        EstimationWarnings.Clear();
         Fatal = false;
         Output.ResetWrittenCount();
         OutputFields.Clear();

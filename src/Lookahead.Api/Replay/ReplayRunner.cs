@@ -1,4 +1,5 @@
 using System.Text.Json;
+using Lookahead.Api.Http;
 using Lookahead.Api.Plans;
 using Lookahead.Core.Planning;
 using Microsoft.Extensions.Options;
@@ -8,11 +9,13 @@ namespace Lookahead.Api.Replay;
 /// <summary>
 /// The replay pipeline: while one batch is planned in parallel (the compiled model is thread-safe) the next is
 /// read, and results are written strictly in input order. Two batches of slots are all the memory it needs,
-/// whatever the number of rows.
+/// whatever the number of rows. A plain replay plans each batch on every worker; an estimation replay
+/// (<see cref="ReplayMode.Measurements"/>) on one, because each row's estimate depends on the row before.
 /// </summary>
 public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner planner, ReplayMetrics metrics)
 {
-    internal async Task<ReplaySummary> RunAsync(IReplaySource source, IReplaySink sink, CompiledModel model, string format, CancellationToken cancellationToken)
+    /// <returns>The totals, or the errors that refused the whole replay before any result was written (400).</returns>
+    internal async Task<ReplayRun> RunAsync(IReplaySource source, IReplaySink sink, CompiledModel model, string format, CancellationToken cancellationToken)
     {
         int size = options.Value.BatchSize;
         int n = model.StateCount, m = model.InputCount, p = model.OutputCount;
@@ -35,33 +38,57 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
 
         try
         {
+            bool filled = await source.FillAsync(current, cancellationToken);
+            var modeErrors = source.ChooseMode(current, model);
+            if (modeErrors.Count > 0)
+            {
+                return new ReplayRun(null, modeErrors);
+            }
+
+            // An estimation replay chains one estimate through its rows in time order, so its rows run on one
+            // worker (reading the next batch still overlaps); separate replays still run side by side.
+            var chain = source.Mode == ReplayMode.Measurements ? new EstimationChain(model) : null;
             await sink.StartAsync(cancellationToken);
-            var filling = source.FillAsync(current, cancellationToken).AsTask();
-            while (await filling)
+            while (filled)
             {
                 bool fatal = current[current.Count - 1].Fatal;
 
                 // Read ahead on another thread while this batch is planned.
                 var next = spare;
-                filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, cancellationToken).AsTask(), cancellationToken);
+                var filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, cancellationToken).AsTask(), cancellationToken);
                 var batch = current;
-                int runs = Math.Min(workers, batch.Count);
-                Parallel.For(
-                    0,
-                    runs,
-                    parallel,
-                    w =>
+                if (chain is not null)
+                {
+                    for (int i = 0; i < batch.Count; i++)
                     {
-                        int from = (int)((long)batch.Count * w / runs);
-                        int to = (int)((long)batch.Count * (w + 1) / runs);
-                        for (int i = from; i < to; i++)
+                        cancellationToken.ThrowIfCancellationRequested();
+                        var row = batch[i];
+                        source.Parse(row);
+                        chain.Advance(row, source.PathPrefix(row));
+                        planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[0]);
+                        sink.Format(row, scratches[0]);
+                    }
+                }
+                else
+                {
+                    int runs = Math.Min(workers, batch.Count);
+                    Parallel.For(
+                        0,
+                        runs,
+                        parallel,
+                        w =>
                         {
-                            var row = batch[i];
-                            source.Parse(row);
-                            planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[w]);
-                            sink.Format(row, scratches[w]);
-                        }
-                    });
+                            int from = (int)((long)batch.Count * w / runs);
+                            int to = (int)((long)batch.Count * (w + 1) / runs);
+                            for (int i = from; i < to; i++)
+                            {
+                                var row = batch[i];
+                                source.Parse(row);
+                                planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[w]);
+                                sink.Format(row, scratches[w]);
+                            }
+                        });
+                }
 
                 await sink.WriteAsync(batch, cancellationToken);
                 for (int i = 0; i < batch.Count; i++)
@@ -74,6 +101,7 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
 
                 rows += batch.Count;
                 (current, spare) = (spare, current);
+                filled = await filling;
             }
         }
         finally
@@ -88,6 +116,6 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
         metrics.Rows.WithLabels(format, "error").Inc(failed);
         var summary = new ReplaySummary(rows, failed, []);
         await sink.CompleteAsync(summary, cancellationToken);
-        return summary;
+        return new ReplayRun(summary, []);
     }
 }

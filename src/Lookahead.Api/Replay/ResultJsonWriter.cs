@@ -25,6 +25,9 @@ internal static class ResultJsonWriter
     private static readonly JsonEncodedText Reason = JsonEncodedText.Encode("reason");
     private static readonly JsonEncodedText Error = JsonEncodedText.Encode("error");
     private static readonly JsonEncodedText Optimal = JsonEncodedText.Encode("optimal");
+    private static readonly JsonEncodedText Estimate = JsonEncodedText.Encode("estimate");
+    private static readonly JsonEncodedText State = JsonEncodedText.Encode("state");
+    private static readonly JsonEncodedText Disturbance = JsonEncodedText.Encode("disturbance");
 
     public static void Write(Utf8JsonWriter writer, ReplayRow row, ReplayDetail detail)
     {
@@ -94,11 +97,20 @@ internal static class ResultJsonWriter
             writer.WriteNumber(SoftLimitPenalty, plan.SoftLimitPenalty);
         }
 
+        // An estimation replay's row says what it was planned from, shaped as /estimate answers it.
+        if (row.Estimate is { } estimate)
+        {
+            writer.WriteStartObject(Estimate);
+            WriteVector(writer, State, estimate.State);
+            WriteVector(writer, Disturbance, estimate.Disturbance);
+            writer.WriteEndObject();
+        }
+
         var warnings = outcome.Warnings;
-        if (warnings.Count > 0 || detail == ReplayDetail.Full)
+        if (warnings.Count > 0 || row.EstimationWarnings.Count > 0 || detail == ReplayDetail.Full)
         {
             writer.WritePropertyName(Warnings);
-            WriteWarnings(writer, WarningText.ToDtos(warnings));
+            WriteWarnings(writer, row.EstimationWarnings.Count == 0 ? WarningText.ToDtos(warnings) : WarningText.ToDtos([.. row.EstimationWarnings, .. warnings]));
         }
 
         writer.WriteEndObject();
