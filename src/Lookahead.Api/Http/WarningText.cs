@@ -55,7 +55,7 @@ public static class WarningText
         WarningCode.DisturbanceNotBalanced =>
             $"no steady state balances the measured disturbance's last row; the plan steers to the least-squares one, off by {G(w.Amount)} at worst in x = Ax + Bu + Ev",
         WarningCode.DisturbanceTargetOutsideInputLimits =>
-            $"holding the setpoint against the measured disturbance needs inputs up to {G(w.Amount)} beyond their limits; the plan respects the limits and steers toward that steady state, which it cannot reach",
+            $"holding the setpoint against the estimated input disturbance needs inputs up to {G(w.Amount)} beyond their limits; the plan respects the limits and steers toward that steady state, which it cannot reach",
         WarningCode.MeasurementMissing =>
             "no measurement this sample: the estimate was propagated with the applied input but not corrected; it drifts until readings return",
         WarningCode.EstimateInitialised =>

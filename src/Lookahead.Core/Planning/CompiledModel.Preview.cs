@@ -133,9 +133,8 @@ public sealed partial class CompiledModel
     }
 
     /// <summary>
-    /// x_s and u_s for (r̄, v̄) from the target maps. Without a disturbance the limited target applies as for any plan;
-    /// with one, a target whose inputs break their limits is kept and flagged (the limited target does not take a
-    /// disturbance yet). Returns whether the input limits moved the target.
+    /// x_s and u_s for (r̄, v̄) from the target maps, replaced by the limited target when they break an input limit
+    /// (with or without a disturbance). Returns whether the input limits moved the target.
     /// </summary>
     private bool PreviewTargets(double[] reference, double[]? disturbance, double[]? inputShift, Span<double> targetState, Span<double> targetInput, List<Warning> warnings)
     {
@@ -193,19 +192,29 @@ public sealed partial class CompiledModel
             targetInput[i] -= inputShift[i];
         }
 
-        if (targetSolver is not null)
+        if (targetSolver is null)
         {
-            double excess = 0;
-            var limits = model.Limits;
-            for (int i = 0; i < InputCount; i++)
-            {
-                excess = Math.Max(excess, Math.Max(limits.InputMin[i] - targetInput[i], targetInput[i] - limits.InputMax[i]));
-            }
+            return false;
+        }
 
-            if (excess > DualActiveSetSolverTolerance(limits))
-            {
-                warnings.Add(new Warning(WarningCode.DisturbanceTargetOutsideInputLimits) { Amount = excess });
-            }
+        if (inputShift is null)
+        {
+            // The limited target takes the disturbance: the same lexicographic rule over x = A x + B u + E v̄ inside the limits.
+            return targetSolver.Limit(reference, targetState, targetInput, disturbance);
+        }
+
+        // An input-disturbance estimate shifts the inputs the plant holds; a target it pushes outside the limits is
+        // kept and flagged (the limited target is not shifted by it).
+        double excess = 0;
+        var limits = model.Limits;
+        for (int i = 0; i < InputCount; i++)
+        {
+            excess = Math.Max(excess, Math.Max(limits.InputMin[i] - targetInput[i], targetInput[i] - limits.InputMax[i]));
+        }
+
+        if (excess > DualActiveSetSolverTolerance(limits))
+        {
+            warnings.Add(new Warning(WarningCode.DisturbanceTargetOutsideInputLimits) { Amount = excess });
         }
 
         return false;

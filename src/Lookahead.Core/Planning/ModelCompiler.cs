@@ -92,7 +92,7 @@ public static class ModelCompiler
             }
             if (model.Limits.HasInputBounds)
             {
-                targetSolver = Guarded("cost.outputWeight", "the limited steady-state targets could not be prepared", () => new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits));
+                targetSolver = Guarded("cost.outputWeight", "the limited steady-state targets could not be prepared", () => new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits, e));
             }
         }
 

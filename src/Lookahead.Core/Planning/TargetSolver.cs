@@ -51,6 +51,13 @@ internal sealed class TargetSolver
 
     private readonly TargetCoordinates coordinates;
     private readonly ValidatedLimits limits;
+    private readonly int n;
+    private readonly int p;
+    private readonly double[] cRows;
+    private readonly double[] particular = [];
+    private readonly int disturbances;
+    private readonly double[] freeStates = [];
+    private readonly int freeStateCount;
     private readonly CholeskyFactor? outputFactor;
     private readonly DualActiveSetSolver? strictStage1;
     private readonly DualActiveSetSolver? stage2;
@@ -64,10 +71,30 @@ internal sealed class TargetSolver
     /// <summary>Cuts are distinct dependencies among the 2m limit rows, in practice a few per binding limit; the cap only bounds pathological counts.</summary>
     private const int CutsPerRow = 10;
 
-    public TargetSolver(Matrix<double> a, Matrix<double> b, Matrix<double> c, Matrix<double> outputWeight, ValidatedLimits limits)
+    /// <param name="e">E (n×q) of measured disturbances, or null: a disturbance's steady states are a shifted copy of the equilibria.</param>
+    public TargetSolver(Matrix<double> a, Matrix<double> b, Matrix<double> c, Matrix<double> outputWeight, ValidatedLimits limits, Matrix<double>? e = null)
     {
         this.limits = limits;
         coordinates = TargetCoordinates.Build(a, b, c, outputWeight);
+        n = a.RowCount;
+        p = c.RowCount;
+        cRows = DenseMatrix.RowMajor(c);
+        if (e is { ColumnCount: > 0 })
+        {
+            // z_p = −[A − I, B]⁺ E v̄, the least-norm particular steady state of a disturbance (columns per disturbance),
+            // and the states that stage 3 may still move: (A − I)δx = 0 with no weighted output, Q^{1/2} C δx = 0.
+            int inputs = b.ColumnCount;
+            var equilibrium = Matrix<double>.Build.Dense(n, n + inputs);
+            equilibrium.SetSubMatrix(0, 0, a - Matrix<double>.Build.DenseIdentity(n));
+            equilibrium.SetSubMatrix(0, n, b);
+            particular = DenseMatrix.RowMajor(-(TargetMap.PseudoInverse(equilibrium, equilibrium.FrobeniusNorm()) * e));
+            disturbances = e.ColumnCount;
+            var unseen = (a - Matrix<double>.Build.DenseIdentity(n)).Stack(TargetMap.SymmetricSquareRoot(outputWeight) * c);
+            var basis = TargetMap.NullSpace(unseen, Math.Max(1.0, unseen.FrobeniusNorm()));
+            freeStates = DenseMatrix.RowMajor(basis.Transpose());
+            freeStateCount = basis.ColumnCount;
+        }
+
         int d = coordinates.Dimension;
         int rho = coordinates.OutputRank;
         int m = coordinates.Inputs;
@@ -95,7 +122,14 @@ internal sealed class TargetSolver
     /// Replaces the unconstrained target with the limited one when u_s breaks an input limit.
     /// Returns true when it did; false when the unconstrained target respects the limits or no equilibrium does.
     /// </summary>
-    public bool Limit(ReadOnlySpan<double> reference, Span<double> targetState, Span<double> targetInput)
+    /// <param name="disturbance">v̄ (q) of a measured disturbance, or empty: the steady states are then x = A x + B u + E v̄.</param>
+    /// <remarks>
+    /// With v̄ every steady state is z_p + z, z an equilibrium of (A, B) and z_p the least-norm particular one. So
+    /// stage 1 is the same program for r − C x_p, the limits on u = u_p + T[s; c] shift by u_p, stage 2's least
+    /// ‖u_p + T[s; c]‖ over c gains the linear term T_cᵀu_p (T has orthonormal columns), and stage 3's least ‖x‖
+    /// takes x_p + x with the states no stage fixes — (A − I)δx = 0 and Q^{1/2}Cδx = 0 — projected out.
+    /// </remarks>
+    public bool Limit(ReadOnlySpan<double> reference, Span<double> targetState, Span<double> targetInput, ReadOnlySpan<double> disturbance = default)
     {
         bool inside = true;
         for (int i = 0; i < coordinates.Inputs; i++)
@@ -109,29 +143,99 @@ internal sealed class TargetSolver
             return false;
         }
 
+        int m = coordinates.Inputs;
+        int d = coordinates.Dimension;
         var workspace = pool.TryTake(out var pooled) ? pooled : new TargetWorkspace(coordinates, stage2);
         try
         {
-            if (!Solve(reference, workspace))
+            workspace.EnsureCallBuffers(m, d - coordinates.OutputRank);
+            Span<double> xp = stackalloc double[n];
+            Span<double> up = stackalloc double[m];
+            Particular(disturbance, xp, up);
+            var shifted = new double[p];
+            for (int j = 0; j < p; j++)
+            {
+                shifted[j] = reference[j] - DenseKernels.Dot(cRows.AsSpan(j * n, n), xp);
+            }
+
+            for (int i = 0; i < m; i++)
+            {
+                workspace.Lower[i] = limits.InputMin[i] - up[i];
+                workspace.Upper[i] = limits.InputMax[i] - up[i];
+            }
+
+            // T_cᵀu_p: the part of u_p along the inputs that leave the weighted output alone.
+            var linear = workspace.Stage2Linear.AsSpan();
+            linear.Clear();
+            var t = coordinates.InputRows;
+            for (int k = 0; k < linear.Length; k++)
+            {
+                for (int i = 0; i < m; i++)
+                {
+                    linear[k] += t[(i * d) + coordinates.OutputRank + k] * up[i];
+                }
+            }
+
+            if (!Solve(shifted, workspace))
             {
                 return false;
             }
 
             var sc = workspace.Coordinates.AsSpan();
-            var input = coordinates.InputRows;
-            for (int i = 0; i < coordinates.Inputs; i++)
+            for (int i = 0; i < m; i++)
             {
-                double u = DenseKernels.Dot(input.AsSpan(i * sc.Length, sc.Length), sc);
+                double u = up[i] + DenseKernels.Dot(t.AsSpan(i * sc.Length, sc.Length), sc);
                 targetInput[i] = Math.Clamp(u, limits.InputMin[i], limits.InputMax[i]);
             }
 
             DenseKernels.Multiply(coordinates.StateFromCoordinates, sc, targetState);
-            DenseKernels.MultiplyAdd(coordinates.StateFromReference, reference, targetState);
+            DenseKernels.MultiplyAdd(coordinates.StateFromReference, shifted, targetState);
+            if (!disturbance.IsEmpty)
+            {
+                DenseKernels.Axpy(1.0, xp, targetState);
+                ProjectOutFreeStates(targetState);
+            }
+
             return true;
         }
         finally
         {
             pool.Add(workspace);
+        }
+    }
+
+    /// <summary>x_p and u_p of the least-norm particular steady state for v̄ (zero without one).</summary>
+    private void Particular(ReadOnlySpan<double> disturbance, Span<double> xp, Span<double> up)
+    {
+        xp.Clear();
+        up.Clear();
+        if (disturbance.IsEmpty || disturbances == 0)
+        {
+            return;
+        }
+
+        int m = coordinates.Inputs;
+        for (int i = 0; i < n + m; i++)
+        {
+            double value = DenseKernels.Dot(particular.AsSpan(i * disturbances, disturbances), disturbance);
+            if (i < n)
+            {
+                xp[i] = value;
+            }
+            else
+            {
+                up[i - n] = value;
+            }
+        }
+    }
+
+    /// <summary>x −= B Bᵀx for the orthonormal basis B of the states no stage fixes.</summary>
+    private void ProjectOutFreeStates(Span<double> x)
+    {
+        for (int k = 0; k < freeStateCount; k++)
+        {
+            var direction = freeStates.AsSpan(k * n, n);
+            DenseKernels.Axpy(-DenseKernels.Dot(direction, x), direction, x);
         }
     }
 
@@ -164,8 +268,8 @@ internal sealed class TargetSolver
             var rhs = workspace.LimitRhs.AsSpan();
             for (int i = 0; i < coordinates.Inputs; i++)
             {
-                rhs[2 * i] = limits.InputMin[i];
-                rhs[(2 * i) + 1] = -limits.InputMax[i];
+                rhs[2 * i] = workspace.Lower[i];
+                rhs[(2 * i) + 1] = -workspace.Upper[i];
             }
 
             return strictStage1.Solve(linear, rhs, s, unconstrained: false, iterationCap, workspace.StrictStage1(strictStage1)).Status == QpStatus.Optimal;
@@ -211,8 +315,8 @@ internal sealed class TargetSolver
             for (int i = 0; i < coordinates.Inputs; i++)
             {
                 double u = DenseKernels.Dot(input.AsSpan(i * d, rho), s);
-                if (u < limits.InputMin[i] - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(limits.InputMin[i])))
-                    || u > limits.InputMax[i] + (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(limits.InputMax[i]))))
+                if (u < workspace.Lower[i] - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(workspace.Lower[i])))
+                    || u > workspace.Upper[i] + (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(workspace.Upper[i]))))
                 {
                     return false;
                 }
@@ -225,14 +329,13 @@ internal sealed class TargetSolver
         for (int i = 0; i < coordinates.Inputs; i++)
         {
             double fixedPart = DenseKernels.Dot(input.AsSpan(i * d, rho), s);
-            rhs[2 * i] = limits.InputMin[i] - fixedPart;
-            rhs[(2 * i) + 1] = fixedPart - limits.InputMax[i];
+            rhs[2 * i] = workspace.Lower[i] - fixedPart;
+            rhs[(2 * i) + 1] = fixedPart - workspace.Upper[i];
         }
 
-        // G = I and no linear term: the unconstrained minimiser is c = 0.
+        // G = I; the linear term is T_cᵀu_p (zero without a disturbance, where the unconstrained minimiser is c = 0).
         var c = workspace.Coordinates.AsSpan(rho);
-        c.Clear();
-        var result = stage2.Solve([], rhs, c, unconstrained: true, iterationCap, workspace.Stage2!);
+        var result = stage2.Solve(workspace.Stage2Linear, rhs, c, unconstrained: false, iterationCap, workspace.Stage2!);
         workspace.LastStage2 = result;
         return result.Status == QpStatus.Optimal;
     }
@@ -290,7 +393,7 @@ internal sealed class TargetSolver
             }
 
             size += lambda * Math.Sqrt(DenseKernels.Dot(t, t));
-            beta += lambda * (row % 2 == 0 ? limits.InputMin[i] : -limits.InputMax[i]);
+            beta += lambda * (row % 2 == 0 ? workspace.Lower[i] : -workspace.Upper[i]);
         }
 
         double norm = Math.Sqrt(DenseKernels.Dot(normal, normal));

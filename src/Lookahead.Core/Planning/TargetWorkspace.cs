@@ -49,6 +49,29 @@ internal sealed class TargetWorkspace
     /// <summary>How the last stage-2 solve ended; its workspace still holds the dual step of a failure.</summary>
     public QpResult LastStage2 { get; set; }
 
+    /// <summary>This call's input limits on T[s; c]: the model's, less the particular equilibrium's inputs u_p of a disturbance.</summary>
+    public double[] Lower { get; private set; } = [];
+
+    public double[] Upper { get; private set; } = [];
+
+    /// <summary>Stage 2's linear term T_cᵀu_p (least ‖u_p + T[s; c]‖ over c); all zero without a disturbance.</summary>
+    public double[] Stage2Linear { get; private set; } = [];
+
+    /// <summary>Sizes the per-call buffers on first use.</summary>
+    public void EnsureCallBuffers(int inputs, int free)
+    {
+        if (Lower.Length != inputs)
+        {
+            Lower = new double[inputs];
+            Upper = new double[inputs];
+        }
+
+        if (Stage2Linear.Length != free)
+        {
+            Stage2Linear = new double[free];
+        }
+    }
+
     public QpWorkspace StrictStage1(DualActiveSetSolver solver) => strictStage1 ??= solver.CreateWorkspace();
 
     public void ClearCuts()

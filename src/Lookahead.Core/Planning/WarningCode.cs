@@ -45,7 +45,7 @@ public enum WarningCode
     /// <summary>No steady state balances the last measured disturbance row; the target is the least-squares one. Amount: the worst residual of x_s = A x_s + B u_s + E v̄.</summary>
     DisturbanceNotBalanced,
 
-    /// <summary>The steady state that balances the measured disturbance needs inputs outside their limits; the plan keeps the limits and steers toward it. Amount: the worst excess.</summary>
+    /// <summary>The steady state that balances an input-disturbance estimate needs inputs outside their limits; the plan keeps the limits and steers toward it. Amount: the worst excess.</summary>
     DisturbanceTargetOutsideInputLimits,
 
     /// <summary>The estimator had no measurement this sample: the estimate was propagated, not corrected.</summary>
