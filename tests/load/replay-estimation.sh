@@ -2,8 +2,8 @@
 # Replays one noisy closed-loop historian export of a small cold-store model with an estimator
 # (tests/load/cold-store-estimated.json) through POST /v1/models/{id}/plans three ways, printing seconds and rows/s:
 #   * estimation replay: measurements (y_<output>, about 0.5 % of readings missing) and the input applied over the
-#     interval ending at each reading (applied_<input>), as CSV and as NDJSON; the estimator runs through the rows in
-#     order, so these rows are planned on one worker;
+#     interval ending at each reading (applied_<input>), as CSV and as NDJSON; the estimator runs through each batch
+#     in order on one thread, then the batch is planned in parallel;
 #   * plain replay of the same trajectory: the true states, references and previous inputs, planned in parallel.
 # The loop: the model's plant plus an unmeasured load step every 3 hours and process noise, measured with noise,
 # under a saturated proportional feedback on the measurement with setpoint changes every 12 hours (one-minute

@@ -8,7 +8,7 @@ namespace Lookahead.Api.Replay;
 /// The estimate carried from row to row of one estimation replay. Each row runs one stateless sample of the model's
 /// estimator (<see cref="CompiledModel.Estimate"/>: propagate the last row's estimate with this row's applied input,
 /// correct it with this row's measurement) and is then planned from the corrected estimate. Not thread-safe: the rows
-/// of one replay must pass through it one at a time, in order, which is why an estimation replay has one worker.
+/// of one replay must pass through it one at a time, in order (the runner does so before planning the batch in parallel).
 /// </summary>
 internal sealed class EstimationChain(CompiledModel model)
 {

@@ -9,8 +9,9 @@ namespace Lookahead.Api.Replay;
 /// <summary>
 /// The replay pipeline: while one batch is planned in parallel (the compiled model is thread-safe) the next is
 /// read, and results are written strictly in input order. Two batches of slots are all the memory it needs,
-/// whatever the number of rows. A plain replay plans each batch on every worker; an estimation replay
-/// (<see cref="ReplayMode.Measurements"/>) on one, because each row's estimate depends on the row before.
+/// whatever the number of rows. Every batch is planned on every worker; an estimation replay
+/// (<see cref="ReplayMode.Measurements"/>) first runs its estimator through the batch on one thread, because each
+/// row's estimate depends on the row before.
 /// </summary>
 public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner planner, ReplayMetrics metrics)
 {
@@ -45,8 +46,8 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
                 return new ReplayRun(null, modeErrors);
             }
 
-            // An estimation replay chains one estimate through its rows in time order, so its rows run on one
-            // worker (reading the next batch still overlaps); separate replays still run side by side.
+            // An estimation replay chains one estimate through its rows in time order: the chain runs through each
+            // batch on one thread, then its rows are planned in parallel like any replay's.
             var chain = source.Mode == ReplayMode.Measurements ? new EstimationChain(model) : null;
             await sink.StartAsync(cancellationToken);
             while (filled)
@@ -59,36 +60,39 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
                 var batch = current;
                 if (chain is not null)
                 {
+                    // The estimator is cheap and must see the rows in order; the plans, which cost the time, need only
+                    // their own row's estimate. So the chain runs through the batch first, then the rows are planned
+                    // like any other replay's.
                     for (int i = 0; i < batch.Count; i++)
                     {
                         cancellationToken.ThrowIfCancellationRequested();
                         var row = batch[i];
                         source.Parse(row);
                         chain.Advance(row, source.PathPrefix(row));
-                        planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[0]);
-                        sink.Format(row, scratches[0]);
                     }
                 }
-                else
-                {
-                    int runs = Math.Min(workers, batch.Count);
-                    Parallel.For(
-                        0,
-                        runs,
-                        parallel,
-                        w =>
+
+                int runs = Math.Min(workers, batch.Count);
+                Parallel.For(
+                    0,
+                    runs,
+                    parallel,
+                    w =>
+                    {
+                        int from = (int)((long)batch.Count * w / runs);
+                        int to = (int)((long)batch.Count * (w + 1) / runs);
+                        for (int i = from; i < to; i++)
                         {
-                            int from = (int)((long)batch.Count * w / runs);
-                            int to = (int)((long)batch.Count * (w + 1) / runs);
-                            for (int i = from; i < to; i++)
+                            var row = batch[i];
+                            if (chain is null)
                             {
-                                var row = batch[i];
                                 source.Parse(row);
-                                planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[w]);
-                                sink.Format(row, scratches[w]);
                             }
-                        });
-                }
+
+                            planner.Run(model, row, depth, PlanRoute.Replay, warmStarts[w]);
+                            sink.Format(row, scratches[w]);
+                        }
+                    });
 
                 await sink.WriteAsync(batch, cancellationToken);
                 for (int i = 0; i < batch.Count; i++)
