@@ -16,6 +16,7 @@ public static class DemoRatios
     private const int Repetitions = 9;
     private const int WarmUpRounds = 3;
 
+    /// <summary>The demo as it was before it moved to engineering units (trim inputs as fractions 0…1, deviations in K).</summary>
     public static ModelDocument Demo() => new(
         "cold-store-demo",
         new PlantSpec(
@@ -26,6 +27,26 @@ public static class DemoRatios
             TimeDomain.Continuous),
         new CostSpec(30, WeightSpec.FromDiagonal([1.0, 1.0, 1.0]), WeightSpec.FromDiagonal([0.05, 0.05, 0.02]), WeightSpec.FromDiagonal([0.5, 0.5, 0.2]), TerminalWeightSpec.Riccati),
         new LimitsSpec([0.0, 0.0, 0.0], [1.0, 1.0, 1.0], [-0.2, -0.2, -0.5], [0.2, 0.2, 0.5], [-3.0, -3.0, -3.0], [2.0, 2.0, 2.0], [100.0, 100.0, 100.0]));
+
+    /// <summary>
+    /// The demo as the service serves it: engineering units (°C around −20, trim in %), the outdoor temperature as
+    /// a measured disturbance and an estimator — the same plant, inputs scaled ×100 (<c>--demo-ratios engineering</c>).
+    /// </summary>
+    public static ModelDocument EngineeringDemo()
+    {
+        var old = Demo();
+        return old with
+        {
+            Plant = old.Plant with { B = old.Plant.B.Select(row => row.Select(v => v / 100).ToArray()).ToArray(), E = [[0.0000036], [0.0000035], [0.000007]] },
+            Cost = old.Cost with { InputWeight = WeightSpec.FromDiagonal([0.000005, 0.000005, 0.000002]), InputRateWeight = WeightSpec.FromDiagonal([0.00005, 0.00005, 0.00002]) },
+            Limits = new LimitsSpec([0.0, 0.0, 0.0], [100.0, 100.0, 100.0], [-20.0, -20.0, -50.0], [20.0, 20.0, 50.0], [-23.0, -23.0, -23.0], [-18.0, -18.0, -18.0], [100.0, 100.0, 100.0]),
+            OperatingPoint = new OperatingPointSpec([-20.0, -20.0, -20.0], [0.0, 0.0, 0.0], [-20.0, -20.0, -20.0], [15.0]),
+        };
+    }
+
+    /// <summary>The seeded states in the engineering demo's units (−20 °C added, previous inputs ×100).</summary>
+    public static IReadOnlyList<PlanRequest> EngineeringStates() =>
+        SeededStates().Select(r => new PlanRequest(r.State.Select(v => v - 20).ToArray(), PreviousInput: r.PreviousInput?.Select(v => v * 100).ToArray())).ToList();
 
     public static IReadOnlyList<PlanRequest> SeededStates()
     {
@@ -41,11 +62,12 @@ public static class DemoRatios
         return requests;
     }
 
-    public static int Run(TextWriter output)
+    public static int Run(TextWriter output, bool engineering = false)
     {
-        var limited = ModelCompiler.Compile(Demo());
-        var free = ModelCompiler.Compile(Demo() with { Limits = null });
-        var requests = SeededStates();
+        var document = engineering ? EngineeringDemo() : Demo();
+        var limited = ModelCompiler.Compile(document);
+        var free = ModelCompiler.Compile(document with { Limits = null });
+        var requests = engineering ? EngineeringStates() : SeededStates();
         JitWarmUp.Run(
             () =>
             {
@@ -84,7 +106,7 @@ public static class DemoRatios
         double median = Median(limitedTimes);
         double p99 = limitedTimes[(int)Math.Ceiling(0.99 * limitedTimes.Length) - 1];
         Array.Sort(iterations);
-        output.WriteLine($"demo, {requests.Count} seeded states × {Repetitions} interleaved repetitions");
+        output.WriteLine($"demo ({(engineering ? "engineering units" : "fractions")}), {requests.Count} seeded states × {Repetitions} interleaved repetitions");
         output.WriteLine($"unconstrained plan (limits removed): median {freeMedian:F1} µs");
         output.WriteLine($"limited plan: median {median:F1} µs = {median / freeMedian:F1}×, p99 {p99:F1} µs = {p99 / freeMedian:F1}×");
         output.WriteLine($"iterations: median {iterations[iterations.Length / 2]}, max {iterations[^1]}");

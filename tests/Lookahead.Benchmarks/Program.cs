@@ -7,7 +7,7 @@ public static class Program
     /// <summary>
     /// <c>--flops</c> prints the floating-point operation counts of one unconstrained plan and exits;
     /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
-    /// <c>--demo-ratios</c> times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
+    /// <c>--demo-ratios</c> (add <c>engineering</c> for the demo as served) times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
@@ -20,7 +20,7 @@ public static class Program
 
         if (args.Contains("--demo-ratios", StringComparer.OrdinalIgnoreCase))
         {
-            return DemoRatios.Run(Console.Out);
+            return DemoRatios.Run(Console.Out, engineering: args.Contains("engineering", StringComparer.OrdinalIgnoreCase));
         }
 
         int timeStates = Array.FindIndex(args, a => a.Equals("--time-states", StringComparison.OrdinalIgnoreCase));
