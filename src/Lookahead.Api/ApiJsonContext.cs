@@ -5,6 +5,7 @@ using Lookahead.Api.Estimation;
 using Lookahead.Api.Models;
 using Lookahead.Api.Plans;
 using Lookahead.Api.Simulation;
+using Lookahead.Api.Stations;
 
 namespace Lookahead.Api;
 
@@ -30,4 +31,10 @@ namespace Lookahead.Api;
 [JsonSerializable(typeof(SimulationResponse))]
 [JsonSerializable(typeof(EstimateRequestDto))]
 [JsonSerializable(typeof(EstimateResponse))]
+[JsonSerializable(typeof(StateEstimateDto))]
+[JsonSerializable(typeof(StationRequest))]
+[JsonSerializable(typeof(StationResponse))]
+[JsonSerializable(typeof(StationPage))]
+[JsonSerializable(typeof(StationStepRequest))]
+[JsonSerializable(typeof(StationStepResponse))]
 public sealed partial class ApiJsonContext : JsonSerializerContext;

@@ -7,13 +7,14 @@ using Lookahead.Api.Models;
 using Lookahead.Api.Plans;
 using Lookahead.Api.Replay;
 using Lookahead.Api.Simulation;
+using Lookahead.Api.Stations;
 
 // Hosting/ holds what every feature stands on; each feature folder registers (when it has services) and maps itself.
 var builder = WebApplication.CreateBuilder(args);
 builder.AddLookaheadConfiguration(args);
 builder.AddLookaheadLogging();
 builder.Services.AddLookaheadHosting();
-builder.Services.AddPlans().AddReplay().AddJsonContext(ApiJsonContext.Default);
+builder.Services.AddPlans().AddReplay().AddStations().AddJsonContext(ApiJsonContext.Default);
 
 var app = builder.Build();
 app.UseLookaheadPipeline();
@@ -23,6 +24,7 @@ app.MapReplayApi();
 app.MapSimulationApi();
 app.MapEstimationApi();
 app.MapAliasesApi();
+app.MapStationsApi();
 app.MapHostingEndpoints();
 app.Run();
 

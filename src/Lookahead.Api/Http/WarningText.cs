@@ -60,6 +60,10 @@ public static class WarningText
             "no measurement this sample: the estimate was propagated with the applied input but not corrected; it drifts until readings return",
         WarningCode.EstimateInitialised =>
             "started without a previous estimate: fitted to this measurement as if the plant were at steady state with the applied input, the rest put in the disturbance estimate",
+        WarningCode.AppliedInputAssumed =>
+            "no applied input was given: the first move suggested at the previous step was taken as what the plant received",
+        WarningCode.AppliedInputFromOperatingPoint =>
+            "no applied input was given for the first step: the model's operating-point input was taken as the input the plant holds, and the first move is rate-limited from it",
         WarningCode.StepsNotOptimal =>
             $"{w.Count} steps did not reach a clean optimum",
         WarningCode.ClosedLoopUnstable =>

@@ -42,6 +42,8 @@ public static class WireNames
         WarningCode.DisturbanceTargetOutsideInputLimits => "disturbance-target-outside-input-limits",
         WarningCode.MeasurementMissing => "measurement-missing",
         WarningCode.EstimateInitialised => "estimate-initialised",
+        WarningCode.AppliedInputAssumed => "applied-input-assumed",
+        WarningCode.AppliedInputFromOperatingPoint => "applied-input-from-operating-point",
         _ => throw new ArgumentOutOfRangeException(nameof(code), code, "no wire name"),
     };
 }

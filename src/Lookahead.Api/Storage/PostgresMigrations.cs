@@ -34,5 +34,21 @@ internal static class PostgresMigrations
                 set_at bigint NOT NULL);
             CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history (name, seq);
             """),
+        // Stations keep estimator state between steps. No foreign key to models: a model may be deleted while a
+        // station still names it, and the station's next step says so instead of the delete failing.
+        new(2, "stations", """
+            CREATE TABLE stations (
+                name text PRIMARY KEY,
+                model_reference text NOT NULL,
+                model_id text NOT NULL,
+                sequence bigint NOT NULL,
+                step_count bigint NOT NULL,
+                estimate text,
+                last_applied_input text,
+                last_first_move text,
+                last_request_hash text,
+                last_answer text,
+                updated_at bigint NOT NULL);
+            """),
     ]);
 }

@@ -8,7 +8,7 @@ namespace Lookahead.Api.Storage;
 /// reorders keys and the stored bytes must be exactly the canonical form the id hashes. Its tables come from
 /// <see cref="PostgresMigrations"/>, brought up to date when the store is first used.
 /// </summary>
-public sealed class PostgresModelStore : IModelStore, IAsyncDisposable
+public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
 {
     private readonly NpgsqlDataSource dataSource;
     private readonly string schema;

@@ -32,5 +32,21 @@ internal static class SqliteMigrations
                 set_at INTEGER NOT NULL);
             CREATE INDEX IF NOT EXISTS alias_history_name ON alias_history(name, seq);
             """),
+        // Stations keep estimator state between steps. No foreign key to models: a model may be deleted while a
+        // station still names it, and the station's next step says so instead of the delete failing.
+        new(2, "stations", """
+            CREATE TABLE stations (
+                name TEXT PRIMARY KEY,
+                model_reference TEXT NOT NULL,
+                model_id TEXT NOT NULL,
+                sequence INTEGER NOT NULL,
+                step_count INTEGER NOT NULL,
+                estimate TEXT,
+                last_applied_input TEXT,
+                last_first_move TEXT,
+                last_request_hash TEXT,
+                last_answer TEXT,
+                updated_at INTEGER NOT NULL);
+            """),
     ]);
 }

@@ -7,7 +7,7 @@ namespace Lookahead.Api.Storage;
 /// caller hears about it (a registration survives SIGKILL and power loss alike). Its tables come from
 /// <see cref="SqliteMigrations"/>, brought up to date when the store is first used.
 /// </summary>
-public sealed class SqliteModelStore : IModelStore, IDisposable
+public sealed partial class SqliteModelStore : IModelStore, IDisposable
 {
     private readonly string connectionString;
     private readonly MigrationSequence migrations;

@@ -53,4 +53,10 @@ public enum WarningCode
 
     /// <summary>No previous estimate was given: this one was fitted to the measurement at steady state, so its first plans rest on that assumption.</summary>
     EstimateInitialised,
+
+    /// <summary>A station step gave no applied input: the move the station suggested last time was taken as applied.</summary>
+    AppliedInputAssumed,
+
+    /// <summary>A station's first step gave no applied input: the model's operating-point input was taken as the input the plant holds.</summary>
+    AppliedInputFromOperatingPoint,
 }

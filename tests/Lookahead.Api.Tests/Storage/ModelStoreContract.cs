@@ -114,6 +114,46 @@ public abstract class ModelStoreContract : IAsyncLifetime
         await Store.PingAsync(default);
     }
 
+    [StoreFact]
+    public async Task A_station_is_created_then_replaced_read_listed_by_name_and_deleted()
+    {
+        var stations = (IStationStore)Store;
+        Assert.True(await stations.PutStationAsync(Station("b", 0), default));
+        Assert.True(await stations.PutStationAsync(Station("a", 0), default));
+        var replaced = Station("b", 0) with { ModelReference = "cold-store", Estimate = """{"state":[1],"disturbance":[]}""" };
+        Assert.False(await stations.PutStationAsync(replaced, default));
+
+        Assert.Equal(replaced, await stations.GetStationAsync("b", default));
+        var page = await stations.ListStationsAsync(0, 1, default);
+        Assert.Equal(2, page.Total);
+        Assert.Equal(["a"], page.Items.Select(s => s.Name));
+        Assert.Equal(["b"], (await stations.ListStationsAsync(1, 5, default)).Items.Select(s => s.Name));
+
+        Assert.True(await stations.DeleteStationAsync("b", default));
+        Assert.False(await stations.DeleteStationAsync("b", default));
+        Assert.Null(await stations.GetStationAsync("b", default));
+    }
+
+    [StoreFact]
+    public async Task A_step_commits_only_on_the_sequence_it_was_computed_from()
+    {
+        var stations = (IStationStore)Store;
+        await stations.PutStationAsync(Station("loop", 0), default);
+        var first = Station("loop", 1) with { StepCount = 1, Estimate = "{}", LastRequestHash = "h1", LastAnswer = """{"sequence":1}""", UpdatedAt = T0.AddMinutes(1) };
+
+        Assert.True(await stations.CommitStepAsync(first, 0, default));
+        Assert.False(await stations.CommitStepAsync(first with { Sequence = 2, LastRequestHash = "h2" }, 0, default));
+        Assert.Equal(first, await stations.GetStationAsync("loop", default));
+
+        // A station re-bound to another model meanwhile refuses a step computed for the old binding.
+        await stations.PutStationAsync(Station("loop", 0) with { ModelId = Id("other") }, default);
+        Assert.False(await stations.CommitStepAsync(first, 0, default));
+        Assert.False(await stations.CommitStepAsync(Station("ghost", 1), 0, default));
+    }
+
+    private static StationRecord Station(string name, long sequence) =>
+        new(name, Id("a"), Id("a"), sequence, 0, null, null, null, null, null, T0);
+
     protected static string Id(string key) => Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(Encoding.UTF8.GetBytes(key)));
 
     private static StoredModel Model(string key, string document = "{}") =>

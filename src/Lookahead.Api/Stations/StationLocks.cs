@@ -1,0 +1,15 @@
+using System.Collections.Concurrent;
+
+namespace Lookahead.Api.Stations;
+
+/// <summary>
+/// One gate per station name, so the steps of a station run one at a time inside this instance (the store's
+/// sequence guard decides between instances). A gate lives as long as the process; there is one per station name
+/// ever stepped here, which is as many as the plant has.
+/// </summary>
+public sealed class StationLocks
+{
+    private readonly ConcurrentDictionary<string, SemaphoreSlim> gates = new(StringComparer.Ordinal);
+
+    public SemaphoreSlim For(string name) => gates.GetOrAdd(name, _ => new SemaphoreSlim(1, 1));
+}

@@ -1,0 +1,283 @@
+using System.Security.Cryptography;
+using System.Text.Json;
+using System.Text.Json.Serialization.Metadata;
+using Lookahead.Api.Catalog;
+using Lookahead.Api.Estimation;
+using Lookahead.Api.Http;
+using Lookahead.Api.Models;
+using Lookahead.Api.Storage;
+using Lookahead.Core.Estimation;
+using Microsoft.AspNetCore.Http.HttpResults;
+
+namespace Lookahead.Api.Stations;
+
+/// <summary>
+/// Stations: named loops bound to a model that keep their estimator state, so a client sends only each new
+/// measurement. Steps of one station are serialised here and guarded by their sequence in the store.
+/// </summary>
+public static class StationsApi
+{
+    public const int DefaultPageSize = 50;
+    public const int MaxPageSize = 500;
+
+    public static IServiceCollection AddStations(this IServiceCollection services)
+    {
+        services.AddSingleton<StationLocks>();
+
+        // Both stores keep stations beside their models, on the same connections and durability settings.
+        services.AddSingleton(sp => (IStationStore)sp.GetRequiredService<IModelStore>());
+        return services;
+    }
+
+    public static RouteGroupBuilder MapStationsApi(this IEndpointRouteBuilder routes)
+    {
+        var group = routes.MapGroup("/v1/stations").WithTags("Stations").RequireRateLimiting(RateLimitPolicy.Name);
+
+        group.MapPut("/{name}", PutAsync)
+            .WithName("PutStation")
+            .WithSummary("Bind a station to a model (id or alias name) with a fresh state; replacing one starts it over")
+            .Accepts<StationRequest>("application/json")
+            .ProducesBodyProblems();
+
+        group.MapGet("", ListAsync)
+            .WithName("ListStations")
+            .WithSummary("List stations in name order, a page at a time")
+            .ProducesProblem(StatusCodes.Status400BadRequest);
+
+        group.MapGet("/{name}", GetAsync)
+            .WithName("GetStation")
+            .WithSummary("A station's model, estimate, last applied input, last suggested move and sequence")
+            .ProducesLookupProblems();
+
+        group.MapDelete("/{name}", DeleteAsync)
+            .WithName("DeleteStation")
+            .WithSummary("Delete a station and its state")
+            .ProducesLookupProblems();
+
+        group.MapPost("/{name}/step", StepAsync)
+            .WithName("StepStation")
+            .WithSummary("One sample: update the station's estimate with the measurement and suggest the next move")
+            .Accepts<StationStepRequest>("application/json")
+            .ProducesBodyProblemsForModel()
+            .ProducesProblem(StatusCodes.Status409Conflict);
+
+        return group;
+    }
+
+    public static async Task<Results<Created<StationResponse>, Ok<StationResponse>, ProblemHttpResult>> PutAsync(string name, [AsParameters] StationServices services)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return StationProblems.MalformedName(name);
+        }
+
+        var body = await services.Reader.ReadJsonAsync<StationRequest>(services.Request, services.CancellationToken);
+        if (body.Problem is not null)
+        {
+            return body.Problem;
+        }
+
+        string? reference = body.Value!.Model;
+        string? modelId;
+        if (reference is null)
+        {
+            return ApiProblems.Validation("model", "is required: a model id or an alias name");
+        }
+        else if (ModelId.IsWellFormed(reference))
+        {
+            modelId = reference;
+        }
+        else if (AliasName.IsWellFormed(reference))
+        {
+            modelId = (await services.Models.GetAliasAsync(reference, services.CancellationToken))?.ModelId;
+            if (modelId is null)
+            {
+                return ApiProblems.Validation("model", $"no alias named '{reference}' exists");
+            }
+        }
+        else
+        {
+            return ApiProblems.Validation("model", "is neither a model id (64 lower-case hexadecimal digits) nor an alias name");
+        }
+
+        var model = await services.Catalog.GetCompiledAsync(modelId);
+        if (model is null)
+        {
+            return ApiProblems.Validation("model", $"no model with id {modelId} is registered");
+        }
+
+        if (model.Estimator is null)
+        {
+            return ApiProblems.Validation("model", "the model has no estimator: a station estimates from measurements, so register the model with one");
+        }
+
+        var record = new StationRecord(name, reference, modelId, 0, 0, null, null, null, null, null, services.Time.GetUtcNow());
+        bool created = await services.Stations.PutStationAsync(record, services.CancellationToken);
+        var response = ToResponse(record, services.Reader.SerializerOptions);
+        return created ? TypedResults.Created($"/v1/stations/{name}", response) : TypedResults.Ok(response);
+    }
+
+    public static async Task<Results<Ok<StationPage>, ProblemHttpResult>> ListAsync(
+        IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken, int? offset = null, int? limit = null)
+    {
+        var errors = new List<ProblemError>();
+        if (offset < 0)
+        {
+            errors.Add(new("offset", "must be 0 or more"));
+        }
+
+        if (limit is < 1 or > MaxPageSize)
+        {
+            errors.Add(new("limit", $"must be between 1 and {MaxPageSize}"));
+        }
+
+        if (errors.Count > 0)
+        {
+            return ApiProblems.Validation(errors);
+        }
+
+        int from = offset ?? 0;
+        int size = limit ?? DefaultPageSize;
+        var listing = await stations.ListStationsAsync(from, size, cancellationToken);
+        var items = listing.Items.Select(s => ToResponse(s, reader.SerializerOptions)).ToList();
+        return TypedResults.Ok(new StationPage(items, from, size, listing.Total));
+    }
+
+    public static async Task<Results<Ok<StationResponse>, ProblemHttpResult>> GetAsync(string name, IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return StationProblems.MalformedName(name);
+        }
+
+        var station = await stations.GetStationAsync(name, cancellationToken);
+        return station is null ? StationProblems.NotFound(name) : TypedResults.Ok(ToResponse(station, reader.SerializerOptions));
+    }
+
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IStationStore stations, CancellationToken cancellationToken)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return StationProblems.MalformedName(name);
+        }
+
+        return await stations.DeleteStationAsync(name, cancellationToken) ? TypedResults.NoContent() : StationProblems.NotFound(name);
+    }
+
+    public static async Task<Results<Ok<StationStepResponse>, ProblemHttpResult>> StepAsync(string name, [AsParameters] StationServices services)
+    {
+        if (!AliasName.IsWellFormed(name))
+        {
+            return StationProblems.MalformedName(name);
+        }
+
+        var body = await services.Reader.ReadJsonAsync<StationStepRequest>(services.Request, services.CancellationToken);
+        if (body.Problem is not null)
+        {
+            return body.Problem;
+        }
+
+        var step = body.Value!;
+        if (step.Sequence is not { } sequence)
+        {
+            return ApiProblems.Validation("sequence", "is required: the station's current sequence (0 for a new station)");
+        }
+
+        var json = services.Reader.SerializerOptions;
+
+        // The body as the service understood it, written back out: key order, spacing and number spelling do not change it.
+        string hash = Convert.ToHexStringLower(SHA256.HashData(JsonSerializer.SerializeToUtf8Bytes(step, TypeInfo<StationStepRequest>(json))));
+        var gate = services.Locks.For(name);
+        await gate.WaitAsync(services.CancellationToken);
+        try
+        {
+            var station = await services.Stations.GetStationAsync(name, services.CancellationToken);
+            if (station is null)
+            {
+                return StationProblems.NotFound(name);
+            }
+
+            if (sequence != station.Sequence)
+            {
+                return Repeat(station, name, sequence, hash, json);
+            }
+
+            var model = await services.Catalog.GetCompiledAsync(station.ModelId);
+            if (model is null)
+            {
+                return ModelProblems.ModelNotFound(station.ModelId, "model");
+            }
+
+            var previous = station.Estimate is null ? null : Read<StateEstimateDto>(station.Estimate, json);
+            var (outcome, errors) = StationStep.Run(
+                model,
+                step,
+                previous is null ? null : new StateEstimate(previous.State!, previous.Disturbance ?? []),
+                station.LastFirstMove is null ? null : Read<double[]>(station.LastFirstMove, json),
+                services.Runner);
+            if (outcome is null)
+            {
+                return ApiProblems.Validation(errors);
+            }
+
+            var estimate = new StateEstimateDto(outcome.Estimate.State, outcome.Estimate.Disturbance);
+            var answer = new StationStepResponse(sequence + 1, estimate, outcome.FirstMove, outcome.Status, WarningText.ToDtos(outcome.Warnings));
+            var next = station with
+            {
+                Sequence = sequence + 1,
+                StepCount = station.StepCount + 1,
+                Estimate = Write(estimate, json),
+                LastAppliedInput = Write(outcome.AppliedInput, json),
+                LastFirstMove = outcome.FirstMove is null ? null : Write(outcome.FirstMove, json),
+                LastRequestHash = hash,
+                LastAnswer = Write(answer, json),
+                UpdatedAt = services.Time.GetUtcNow(),
+            };
+
+            // The final guard, for another instance on the same store (or a re-bind meanwhile): the write only
+            // lands on the sequence this step was computed from.
+            if (!await services.Stations.CommitStepAsync(next, sequence, services.CancellationToken))
+            {
+                var now = await services.Stations.GetStationAsync(name, services.CancellationToken);
+                return now is null ? StationProblems.NotFound(name) : Repeat(now, name, sequence, hash, json);
+            }
+
+            return TypedResults.Ok(answer);
+        }
+        finally
+        {
+            gate.Release();
+        }
+    }
+
+    /// <summary>An identical retry of the last applied step gets its stored answer; any other sequence is stale.</summary>
+    private static Results<Ok<StationStepResponse>, ProblemHttpResult> Repeat(StationRecord station, string name, long given, string hash, JsonSerializerOptions json)
+    {
+        if (given == station.Sequence - 1 && station.LastRequestHash == hash && station.LastAnswer is { } stored)
+        {
+            return TypedResults.Ok(Read<StationStepResponse>(stored, json));
+        }
+
+        return StationProblems.StaleSequence(name, given, station.Sequence);
+    }
+
+    private static StationResponse ToResponse(StationRecord s, JsonSerializerOptions json) => new(
+        s.Name,
+        s.ModelReference,
+        s.ModelId,
+        s.Sequence,
+        s.StepCount,
+        s.Estimate is null ? null : Read<StateEstimateDto>(s.Estimate, json),
+        s.LastAppliedInput is null ? null : Read<double[]>(s.LastAppliedInput, json),
+        s.LastFirstMove is null ? null : Read<double[]>(s.LastFirstMove, json),
+        s.UpdatedAt);
+
+    // The service's own JSON settings: doubles are written in their shortest round-trip form, so a stored estimate
+    // reads back bit for bit.
+    private static string Write<T>(T value, JsonSerializerOptions json) => JsonSerializer.Serialize(value, TypeInfo<T>(json));
+
+    private static T Read<T>(string text, JsonSerializerOptions json) =>
+        JsonSerializer.Deserialize(text, TypeInfo<T>(json)) ?? throw new InvalidDataException("a station's stored state is empty");
+
+    private static JsonTypeInfo<T> TypeInfo<T>(JsonSerializerOptions json) => (JsonTypeInfo<T>)json.GetTypeInfo(typeof(T));
+}
