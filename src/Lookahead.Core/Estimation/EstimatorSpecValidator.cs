@@ -79,8 +79,8 @@ public static class EstimatorSpecValidator
             return null;
         }
 
-        CheckDefinite(w, ProcessNoisePath, strict: false, errors);
-        CheckDefinite(v, MeasurementNoisePath, strict: true, errors);
+        ModelValidator.CheckDefinite(w, ProcessNoisePath, strict: false, errors);
+        ModelValidator.CheckDefinite(v, MeasurementNoisePath, strict: true, errors, "a noise-free measurement would make the filter gain undefined");
         return errors.Count > 0 ? null : (w, v);
     }
 
@@ -185,51 +185,6 @@ public static class EstimatorSpecValidator
         else if (Math.Abs(value) > ModelValidator.MaxMagnitude)
         {
             errors.Add(new(path, $"is {value:g3}; entries larger than {ModelValidator.MaxMagnitude:g3} in magnitude are refused — express the covariance in units that keep its numbers nearer 1"));
-        }
-    }
-
-    /// <summary>
-    /// Definiteness relative to the covariance's own largest eigenvalue in magnitude λ*: semidefinite when
-    /// λ_min ≥ −tol·λ*, definite when λ_min &gt; tol·λ* (tol = <see cref="ModelValidator.DefinitenessTolerance"/>).
-    /// The eigenvalues are computed on the matrix divided by a power of two (exact), which keeps the iteration in range.
-    /// </summary>
-    private static void CheckDefinite(Matrix<double> covariance, string path, bool strict, List<ValidationError> errors)
-    {
-        double scale = MatrixScale.MaxAbs(covariance);
-        if (scale == 0)
-        {
-            if (strict)
-            {
-                errors.Add(new(path, "must be positive definite: it is all zeros (a noise-free measurement would make the filter gain undefined)"));
-            }
-
-            return;
-        }
-
-        int exponent = MatrixScale.Exponent(scale);
-        double[] eigenvalues;
-        try
-        {
-            eigenvalues = MatrixScale.ScaleDown(covariance, exponent).Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
-        }
-        catch (NonConvergenceException)
-        {
-            errors.Add(new(path, "its eigenvalues could not be computed (the iteration did not converge), so its definiteness cannot be judged"));
-            return;
-        }
-
-        double largestUnit = eigenvalues.Select(Math.Abs).Max();
-        double smallestUnit = eigenvalues.Min();
-        double largest = Math.ScaleB(largestUnit, exponent);
-        double smallest = Math.ScaleB(smallestUnit, exponent);
-        double tolerance = ModelValidator.DefinitenessTolerance;
-        if (strict && !(smallestUnit > tolerance * largestUnit))
-        {
-            errors.Add(new(path, $"must be positive definite: its smallest eigenvalue {smallest:g3} is not above {tolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (definiteness is judged relative to the matrix's own scale, so its units do not matter)"));
-        }
-        else if (!strict && smallestUnit < -tolerance * largestUnit)
-        {
-            errors.Add(new(path, $"must be positive semidefinite: its smallest eigenvalue {smallest:g3} is below −{tolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (semidefiniteness is judged relative to the matrix's own scale, so its units do not matter)"));
         }
     }
 }

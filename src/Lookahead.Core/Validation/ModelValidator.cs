@@ -394,17 +394,19 @@ public static class ModelValidator
     }
 
     /// <summary>
-    /// Definiteness judged relative to the weight's own scale, so its units do not decide it. The eigenvalues are
-    /// computed on the weight divided by a power of two (exact), which keeps the iteration's norms in range.
+    /// Definiteness judged relative to the matrix's own scale, so its units do not decide it (weights here, noise
+    /// covariances in the estimator's check). The eigenvalues are computed on the matrix divided by a power of two
+    /// (exact), which keeps the iteration's norms in range.
     /// </summary>
-    private static void CheckDefinite(Matrix<double> weight, string path, bool strict, List<ValidationError> errors)
+    /// <param name="zeroReason">What an all-zero matrix would break, added to its message when definiteness is required.</param>
+    internal static void CheckDefinite(Matrix<double> matrix, string path, bool strict, List<ValidationError> errors, string? zeroReason = null)
     {
-        double scale = MatrixScale.MaxAbs(weight);
+        double scale = MatrixScale.MaxAbs(matrix);
         if (scale == 0)
         {
             if (strict)
             {
-                errors.Add(new(path, "must be positive definite: it is all zeros"));
+                errors.Add(new(path, zeroReason is null ? "must be positive definite: it is all zeros" : $"must be positive definite: it is all zeros ({zeroReason})"));
             }
 
             return;
@@ -414,7 +416,7 @@ public static class ModelValidator
         double[] eigenvalues;
         try
         {
-            eigenvalues = MatrixScale.ScaleDown(weight, exponent).Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
+            eigenvalues = MatrixScale.ScaleDown(matrix, exponent).Evd(Symmetricity.Symmetric).EigenValues.Select(z => z.Real).ToArray();
         }
         catch (NonConvergenceException)
         {
@@ -426,13 +428,14 @@ public static class ModelValidator
         double smallestUnit = eigenvalues.Min();
         double largest = Math.ScaleB(largestUnit, exponent);
         double smallest = Math.ScaleB(smallestUnit, exponent);
+        const string why = "relative to its largest eigenvalue, that is relative to the matrix's own scale, so its units do not matter";
         if (strict && !(smallestUnit > DefinitenessTolerance * largestUnit))
         {
-            errors.Add(new(path, $"must be positive definite: its smallest eigenvalue {smallest:g3} is not above {DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (definiteness is judged relative to its largest eigenvalue, so the weight's units do not matter)"));
+            errors.Add(new(path, $"must be positive definite: its smallest eigenvalue {smallest:g3} is not above {DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (definiteness is judged {why})"));
         }
         else if (!strict && smallestUnit < -DefinitenessTolerance * largestUnit)
         {
-            errors.Add(new(path, $"must be positive semidefinite: its smallest eigenvalue {smallest:g3} is below −{DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (semidefiniteness is judged relative to its largest eigenvalue, so the weight's units do not matter)"));
+            errors.Add(new(path, $"must be positive semidefinite: its smallest eigenvalue {smallest:g3} is below −{DefinitenessTolerance:g} × {largest:g3}, its largest eigenvalue in magnitude (semidefiniteness is judged {why})"));
         }
     }
 
