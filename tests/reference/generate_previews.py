@@ -298,7 +298,7 @@ def check_target(a, b, e, c, q, rbar, vbar, xs, us):
 
 # ----------------------------------------------------------------- problem
 
-class PreviewProblem:
+class PreviewProblem(gf.Problem):
     """One plan problem in arrays.  Attribute names follow
     generate_fixtures.Problem, so generate_fixtures.constrained_qp builds its
     inequality rows and slacks unchanged."""
@@ -354,16 +354,7 @@ class PreviewProblem:
         twin.limits = limits
         return twin
 
-    # variable layout: x_1..x_N, u_0..u_{N-1}, then slacks (as generate_fixtures)
-    def xi(self, k):
-        return slice((k - 1) * self.n, k * self.n)
-
-    def ui(self, k):
-        o = self.N * self.n
-        return slice(o + k * self.m, o + (k + 1) * self.m)
-
-    def nz(self):
-        return self.N * (self.n + self.m)
+    # variable layout (xi, ui, nz): generate_fixtures.Problem's, inherited
 
     def quadratic(self, extra=0):
         """J = 1/2 z'Hz + f'z + const; generate_fixtures.Problem.quadratic with r_k."""
