@@ -37,4 +37,5 @@ namespace Lookahead.Api;
 [JsonSerializable(typeof(StationPage))]
 [JsonSerializable(typeof(StationStepRequest))]
 [JsonSerializable(typeof(StationStepResponse))]
+[JsonSerializable(typeof(StationStepHistory))]
 public sealed partial class ApiJsonContext : JsonSerializerContext;

@@ -1,6 +1,7 @@
 using System.Net;
 using System.Text.Json.Nodes;
 using Lookahead.Api.Tests.Support;
+using static Lookahead.Api.Tests.Support.Stations;
 using Xunit;
 
 namespace Lookahead.Api.Tests;
@@ -318,49 +319,6 @@ public class StationTests
         await (await client.GetAsync("/v1/stations/x")).ReadProblemAsync(HttpStatusCode.NotFound);
         await (await client.PostJsonAsync("/v1/stations/x/step", """{"sequence":0,"measurement":[0,0]}""")).ReadProblemAsync(HttpStatusCode.NotFound);
     }
-
-    private static async Task<JsonNode> StepAsync(HttpClient client, string station, long sequence, double[] measurement, double[]? applied, double[]? reference = null)
-    {
-        var response = await client.PostJsonAsync($"/v1/stations/{station}/step", StepBody(sequence, measurement, applied, reference));
-        string text = await response.Content.ReadAsStringAsync();
-        Assert.True(response.StatusCode == HttpStatusCode.OK, $"step {sequence}: {(int)response.StatusCode} {text}");
-        return JsonNode.Parse(text)!;
-    }
-
-    private static JsonObject StepBody(long sequence, double[] measurement, double[]? applied, double[]? reference)
-    {
-        var body = new JsonObject { ["sequence"] = sequence, ["measurement"] = Array(measurement) };
-        if (applied is not null)
-        {
-            body["appliedInput"] = Array(applied);
-        }
-
-        if (reference is not null)
-        {
-            body["reference"] = Array(reference);
-        }
-
-        return body;
-    }
-
-    private static JsonObject EstimateBody(JsonNode? estimate, double[] applied, double[] measurement)
-    {
-        var body = new JsonObject { ["appliedInput"] = Array(applied), ["measurement"] = Array(measurement) };
-        if (estimate is not null)
-        {
-            body["estimate"] = estimate.DeepClone();
-        }
-
-        return body;
-    }
-
-    private static IEnumerable<string> Codes(JsonNode answer) => answer["warnings"]!.AsArray().Select(w => w!["code"]!.GetValue<string>());
-
-    private static JsonArray Array(double[] values) => new(values.Select(v => (JsonNode)v).ToArray());
-
-    private static StringContent Json(JsonNode node) => Json(node.ToJsonString());
-
-    private static StringContent Json(string text) => new(text, System.Text.Encoding.UTF8, "application/json");
 
     /// <summary>The plant the loop runs on (deviations from −20 °C / 60 %): gains 20 % above the model and a constant load.</summary>
     private sealed class TruePlant

@@ -64,6 +64,16 @@ public static class WarningText
             "no applied input was given: the first move suggested at the previous step was taken as what the plant received",
         WarningCode.AppliedInputFromOperatingPoint =>
             "no applied input was given for the first step: the model's operating-point input was taken as the input the plant holds, and the first move is rate-limited from it",
+        WarningCode.SamplesMissed =>
+            $"{w.Count} sample(s) were missed since the last step: the estimate was propagated through them with the applied input held, without correction",
+        WarningCode.StationRestartedAfterGap =>
+            $"{w.Count} samples were missed since the last step, more than the station propagates through: the estimate started over from this measurement",
+        WarningCode.ModelChangedEstimateKept =>
+            "the station's alias now names another model with the same dimensions: this step used it and carried the estimate over",
+        WarningCode.ModelChangedEstimateRestarted =>
+            "the station's alias now names a model with other dimensions: this step used it and started the estimate over from this measurement",
+        WarningCode.AliasGoneModelKept =>
+            "the station's alias no longer exists: this step used the model the station last stepped with",
         WarningCode.StepsNotOptimal =>
             $"{w.Count} steps did not reach a clean optimum",
         WarningCode.ClosedLoopUnstable =>

@@ -44,6 +44,11 @@ public static class WireNames
         WarningCode.EstimateInitialised => "estimate-initialised",
         WarningCode.AppliedInputAssumed => "applied-input-assumed",
         WarningCode.AppliedInputFromOperatingPoint => "applied-input-from-operating-point",
+        WarningCode.SamplesMissed => "samples-missed",
+        WarningCode.StationRestartedAfterGap => "station-restarted-after-gap",
+        WarningCode.ModelChangedEstimateKept => "model-changed-estimate-kept",
+        WarningCode.ModelChangedEstimateRestarted => "model-changed-estimate-restarted",
+        WarningCode.AliasGoneModelKept => "alias-gone-model-kept",
         _ => throw new ArgumentOutOfRangeException(nameof(code), code, "no wire name"),
     };
 }

@@ -8,4 +8,7 @@ public enum PlanRoute
 
     /// <summary>A row of POST …/plans.</summary>
     Replay,
+
+    /// <summary>A station's step.</summary>
+    Station,
 }

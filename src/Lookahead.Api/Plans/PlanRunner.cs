@@ -74,5 +74,10 @@ public sealed class PlanRunner
         counts[(int)route, (int)call.Outcome.Value.Status].Inc();
     }
 
-    private static string Label(PlanRoute route) => route == PlanRoute.Replay ? "replay" : "plan";
+    private static string Label(PlanRoute route) => route switch
+    {
+        PlanRoute.Replay => "replay",
+        PlanRoute.Station => "station",
+        _ => "plan",
+    };
 }

@@ -2,6 +2,8 @@ using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
 using Lookahead.Api.Plans;
 using Lookahead.Api.Storage;
+using Microsoft.Extensions.Options;
+using Serilog;
 
 namespace Lookahead.Api.Stations;
 
@@ -14,5 +16,9 @@ public sealed record StationServices(
     IStationStore Stations,
     StationLocks Locks,
     PlanRunner Runner,
+    StationMetrics Metrics,
+    StationLog Events,
+    IDiagnosticContext Log,
+    IOptions<StationOptions> Options,
     TimeProvider Time,
     CancellationToken CancellationToken);

@@ -23,6 +23,9 @@ public static class StationsApi
     public static IServiceCollection AddStations(this IServiceCollection services)
     {
         services.AddSingleton<StationLocks>();
+        services.AddSingleton<StationMetrics>();
+        services.AddSingleton<StationLog>();
+        services.AddOptions<StationOptions>().BindConfiguration(StationOptions.Section).ValidateDataAnnotations().ValidateOnStart();
 
         // Both stores keep stations beside their models, on the same connections and durability settings.
         services.AddSingleton(sp => (IStationStore)sp.GetRequiredService<IModelStore>());
@@ -54,7 +57,14 @@ public static class StationsApi
             .WithSummary("Delete a station and its state")
             .ProducesLookupProblems();
 
-        group.MapPost("/{name}/step", StepAsync)
+        group.MapGet("/{name}/steps", StationHistoryEndpoint.GetStepsAsync)
+            .WithName("GetStationSteps")
+            .WithSummary("A station's most recent steps, oldest first: what each asked and answered (?format=csv for a table)")
+            .Produces<StationStepHistory>(StatusCodes.Status200OK, "application/json")
+            .Produces<string>(StatusCodes.Status200OK, StationHistoryCsv.ContentType)
+            .ProducesLookupProblems();
+
+        group.MapPost("/{name}/step", StationStepEndpoint.StepAsync)
             .WithName("StepStation")
             .WithSummary("One sample: update the station's estimate with the measurement and suggest the next move")
             .Accepts<StationStepRequest>("application/json")
@@ -78,6 +88,12 @@ public static class StationsApi
         }
 
         string? reference = body.Value!.Model;
+        string detail = body.Value.Detail ?? StationDetail.FirstMove;
+        if (detail is not (StationDetail.FirstMove or StationDetail.Full))
+        {
+            return ApiProblems.Validation("detail", $"must be '{StationDetail.FirstMove}' or '{StationDetail.Full}'");
+        }
+
         string? modelId;
         if (reference is null)
         {
@@ -111,7 +127,7 @@ public static class StationsApi
             return ApiProblems.Validation("model", "the model has no estimator: a station estimates from measurements, so register the model with one");
         }
 
-        var record = new StationRecord(name, reference, modelId, 0, 0, null, null, null, null, null, services.Time.GetUtcNow());
+        var record = new StationRecord(name, reference, modelId, detail, 0, 0, null, null, null, null, null, null, services.Time.GetUtcNow());
         bool created = await services.Stations.PutStationAsync(record, services.CancellationToken);
         var response = ToResponse(record, services.Reader.SerializerOptions);
         return created ? TypedResults.Created($"/v1/stations/{name}", response) : TypedResults.Ok(response);
@@ -164,120 +180,16 @@ public static class StationsApi
         return await stations.DeleteStationAsync(name, cancellationToken) ? TypedResults.NoContent() : StationProblems.NotFound(name);
     }
 
-    public static async Task<Results<Ok<StationStepResponse>, ProblemHttpResult>> StepAsync(string name, [AsParameters] StationServices services)
-    {
-        if (!AliasName.IsWellFormed(name))
-        {
-            return StationProblems.MalformedName(name);
-        }
-
-        var body = await services.Reader.ReadJsonAsync<StationStepRequest>(services.Request, services.CancellationToken);
-        if (body.Problem is not null)
-        {
-            return body.Problem;
-        }
-
-        var step = body.Value!;
-        if (step.Sequence is not { } sequence)
-        {
-            return ApiProblems.Validation("sequence", "is required: the station's current sequence (0 for a new station)");
-        }
-
-        var json = services.Reader.SerializerOptions;
-
-        // The body as the service understood it, written back out: key order, spacing and number spelling do not change it.
-        string hash = Convert.ToHexStringLower(SHA256.HashData(JsonSerializer.SerializeToUtf8Bytes(step, TypeInfo<StationStepRequest>(json))));
-        var gate = services.Locks.For(name);
-        await gate.WaitAsync(services.CancellationToken);
-        try
-        {
-            var station = await services.Stations.GetStationAsync(name, services.CancellationToken);
-            if (station is null)
-            {
-                return StationProblems.NotFound(name);
-            }
-
-            if (sequence != station.Sequence)
-            {
-                return Repeat(station, name, sequence, hash, json);
-            }
-
-            var model = await services.Catalog.GetCompiledAsync(station.ModelId);
-            if (model is null)
-            {
-                return ModelProblems.ModelNotFound(station.ModelId, "model");
-            }
-
-            var previous = station.Estimate is null ? null : Read<StateEstimateDto>(station.Estimate, json);
-            var (outcome, errors) = StationStep.Run(
-                model,
-                step,
-                previous is null ? null : new StateEstimate(previous.State!, previous.Disturbance ?? []),
-                station.LastFirstMove is null ? null : Read<double[]>(station.LastFirstMove, json),
-                services.Runner);
-            if (outcome is null)
-            {
-                return ApiProblems.Validation(errors);
-            }
-
-            var estimate = new StateEstimateDto(outcome.Estimate.State, outcome.Estimate.Disturbance);
-            var answer = new StationStepResponse(sequence + 1, estimate, outcome.FirstMove, outcome.Status, WarningText.ToDtos(outcome.Warnings));
-            var next = station with
-            {
-                Sequence = sequence + 1,
-                StepCount = station.StepCount + 1,
-                Estimate = Write(estimate, json),
-                LastAppliedInput = Write(outcome.AppliedInput, json),
-                LastFirstMove = outcome.FirstMove is null ? null : Write(outcome.FirstMove, json),
-                LastRequestHash = hash,
-                LastAnswer = Write(answer, json),
-                UpdatedAt = services.Time.GetUtcNow(),
-            };
-
-            // The final guard, for another instance on the same store (or a re-bind meanwhile): the write only
-            // lands on the sequence this step was computed from.
-            if (!await services.Stations.CommitStepAsync(next, sequence, services.CancellationToken))
-            {
-                var now = await services.Stations.GetStationAsync(name, services.CancellationToken);
-                return now is null ? StationProblems.NotFound(name) : Repeat(now, name, sequence, hash, json);
-            }
-
-            return TypedResults.Ok(answer);
-        }
-        finally
-        {
-            gate.Release();
-        }
-    }
-
-    /// <summary>An identical retry of the last applied step gets its stored answer; any other sequence is stale.</summary>
-    private static Results<Ok<StationStepResponse>, ProblemHttpResult> Repeat(StationRecord station, string name, long given, string hash, JsonSerializerOptions json)
-    {
-        if (given == station.Sequence - 1 && station.LastRequestHash == hash && station.LastAnswer is { } stored)
-        {
-            return TypedResults.Ok(Read<StationStepResponse>(stored, json));
-        }
-
-        return StationProblems.StaleSequence(name, given, station.Sequence);
-    }
-
     private static StationResponse ToResponse(StationRecord s, JsonSerializerOptions json) => new(
         s.Name,
         s.ModelReference,
         s.ModelId,
+        s.Detail,
         s.Sequence,
         s.StepCount,
-        s.Estimate is null ? null : Read<StateEstimateDto>(s.Estimate, json),
-        s.LastAppliedInput is null ? null : Read<double[]>(s.LastAppliedInput, json),
-        s.LastFirstMove is null ? null : Read<double[]>(s.LastFirstMove, json),
+        s.Estimate is null ? null : StationJson.Read<StateEstimateDto>(s.Estimate, json),
+        s.LastAppliedInput is null ? null : StationJson.Read<double[]>(s.LastAppliedInput, json),
+        s.LastFirstMove is null ? null : StationJson.Read<double[]>(s.LastFirstMove, json),
+        s.LastTimestamp,
         s.UpdatedAt);
-
-    // The service's own JSON settings: doubles are written in their shortest round-trip form, so a stored estimate
-    // reads back bit for bit.
-    private static string Write<T>(T value, JsonSerializerOptions json) => JsonSerializer.Serialize(value, TypeInfo<T>(json));
-
-    private static T Read<T>(string text, JsonSerializerOptions json) =>
-        JsonSerializer.Deserialize(text, TypeInfo<T>(json)) ?? throw new InvalidDataException("a station's stored state is empty");
-
-    private static JsonTypeInfo<T> TypeInfo<T>(JsonSerializerOptions json) => (JsonTypeInfo<T>)json.GetTypeInfo(typeof(T));
 }

@@ -6,7 +6,7 @@ namespace Lookahead.Api.Storage;
 /// </summary>
 public interface IStationStore
 {
-    /// <summary>Creates the station or replaces it (the binding and every piece of state); true when it was new.</summary>
+    /// <summary>Creates the station or replaces it (the binding, every piece of state and its history); true when it was new.</summary>
     Task<bool> PutStationAsync(StationRecord station, CancellationToken cancellationToken);
 
     Task<StationRecord?> GetStationAsync(string name, CancellationToken cancellationToken);
@@ -14,13 +14,16 @@ public interface IStationStore
     /// <summary>Stations in name order, a page at a time.</summary>
     Task<StationListing> ListStationsAsync(int offset, int limit, CancellationToken cancellationToken);
 
-    /// <summary>False when there was no such station.</summary>
+    /// <summary>Deletes the station and its history; false when there was no such station.</summary>
     Task<bool> DeleteStationAsync(string name, CancellationToken cancellationToken);
 
     /// <summary>
-    /// Writes the state after a step, in one statement guarded by the sequence the step was computed from:
-    /// false when the station's sequence is no longer <paramref name="expectedSequence"/> (another step won) or the
-    /// station is gone. <paramref name="next"/> carries the new sequence.
+    /// Writes the state after a step and its history entry, in one transaction guarded by the sequence and model the
+    /// step was computed from: false (and nothing written) when the station's sequence or model moved meanwhile
+    /// (another step won, or the station was re-bound) or the station is gone. Acknowledged only once committed.
     /// </summary>
-    Task<bool> CommitStepAsync(StationRecord next, long expectedSequence, CancellationToken cancellationToken);
+    Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken);
+
+    /// <summary>The newest <paramref name="limit"/> steps of a station's history, oldest first.</summary>
+    Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken);
 }

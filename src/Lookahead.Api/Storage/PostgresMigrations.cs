@@ -50,5 +50,18 @@ internal static class PostgresMigrations
                 last_answer text,
                 updated_at bigint NOT NULL);
             """),
+        // Stations answer with a whole plan on request, bridge missed samples by the plant's timestamps and keep their
+        // last steps. Existing stations keep answering with the first move.
+        new(3, "station detail, timestamps and step history", """
+            ALTER TABLE stations ADD COLUMN detail text NOT NULL DEFAULT 'first-move';
+            ALTER TABLE stations ADD COLUMN last_timestamp bigint;
+            CREATE TABLE station_steps (
+                name text NOT NULL,
+                sequence bigint NOT NULL,
+                stepped_at bigint NOT NULL,
+                request text NOT NULL,
+                answer text NOT NULL,
+                PRIMARY KEY (name, sequence));
+            """),
     ]);
 }

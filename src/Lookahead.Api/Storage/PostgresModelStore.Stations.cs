@@ -3,35 +3,44 @@ using NpgsqlTypes;
 
 namespace Lookahead.Api.Storage;
 
-/// <summary>The stations table of the PostgreSQL store.</summary>
+/// <summary>The stations and station_steps tables of the PostgreSQL store.</summary>
 public sealed partial class PostgresModelStore : IStationStore
 {
-    private const string StationColumns =
-        "name, model_reference, model_id, sequence, step_count, estimate, last_applied_input, last_first_move, last_request_hash, last_answer, updated_at";
-
     private string Stations => $"\"{schema}\".stations";
+
+    private string StationSteps => $"\"{schema}\".station_steps";
 
     public async Task<bool> PutStationAsync(StationRecord station, CancellationToken cancellationToken)
     {
         await EnsureSchemaAsync(cancellationToken);
+        await using var connection = await dataSource.OpenConnectionAsync(cancellationToken);
+        await using var transaction = await connection.BeginTransactionAsync(cancellationToken);
 
         // xmax = 0 only on a freshly inserted row: tells created from replaced in the same statement.
-        await using var command = dataSource.CreateCommand($"""
-            INSERT INTO {Stations} ({StationColumns}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)
+        bool created;
+        await using (var command = new NpgsqlCommand($"""
+            INSERT INTO {Stations} ({StationRecord.Columns}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13)
             ON CONFLICT (name) DO UPDATE SET model_reference = excluded.model_reference, model_id = excluded.model_id,
-                sequence = excluded.sequence, step_count = excluded.step_count, estimate = excluded.estimate,
+                detail = excluded.detail, sequence = excluded.sequence, step_count = excluded.step_count, estimate = excluded.estimate,
                 last_applied_input = excluded.last_applied_input, last_first_move = excluded.last_first_move,
-                last_request_hash = excluded.last_request_hash, last_answer = excluded.last_answer, updated_at = excluded.updated_at
+                last_request_hash = excluded.last_request_hash, last_answer = excluded.last_answer,
+                last_timestamp = excluded.last_timestamp, updated_at = excluded.updated_at
             RETURNING (xmax = 0)
-            """);
-        AddStation(command, station);
-        return (bool)(await command.ExecuteScalarAsync(cancellationToken))!;
+            """, connection, transaction))
+        {
+            AddStation(command, station);
+            created = (bool)(await command.ExecuteScalarAsync(cancellationToken))!;
+        }
+
+        await DeleteStepsAsync(connection, transaction, station.Name, cancellationToken);
+        await transaction.CommitAsync(cancellationToken);
+        return created;
     }
 
     public async Task<StationRecord?> GetStationAsync(string name, CancellationToken cancellationToken)
     {
         await EnsureSchemaAsync(cancellationToken);
-        await using var command = dataSource.CreateCommand($"SELECT {StationColumns} FROM {Stations} WHERE name = $1");
+        await using var command = dataSource.CreateCommand($"SELECT {StationRecord.Columns} FROM {Stations} WHERE name = $1");
         command.Parameters.Add(new NpgsqlParameter { Value = name });
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
         return await reader.ReadAsync(cancellationToken) ? StationRecord.Read(reader) : null;
@@ -41,7 +50,7 @@ public sealed partial class PostgresModelStore : IStationStore
     {
         await EnsureSchemaAsync(cancellationToken);
         var items = new List<StationRecord>();
-        await using (var command = dataSource.CreateCommand($"SELECT {StationColumns} FROM {Stations} ORDER BY name COLLATE \"C\" LIMIT $1 OFFSET $2"))
+        await using (var command = dataSource.CreateCommand($"SELECT {StationRecord.Columns} FROM {Stations} ORDER BY name COLLATE \"C\" LIMIT $1 OFFSET $2"))
         {
             command.Parameters.Add(new NpgsqlParameter { Value = limit });
             command.Parameters.Add(new NpgsqlParameter { Value = offset });
@@ -59,25 +68,89 @@ public sealed partial class PostgresModelStore : IStationStore
     public async Task<bool> DeleteStationAsync(string name, CancellationToken cancellationToken)
     {
         await EnsureSchemaAsync(cancellationToken);
-        await using var command = dataSource.CreateCommand($"DELETE FROM {Stations} WHERE name = $1");
-        command.Parameters.Add(new NpgsqlParameter { Value = name });
-        return await command.ExecuteNonQueryAsync(cancellationToken) == 1;
+        await using var connection = await dataSource.OpenConnectionAsync(cancellationToken);
+        await using var transaction = await connection.BeginTransactionAsync(cancellationToken);
+        bool deleted;
+        await using (var command = new NpgsqlCommand($"DELETE FROM {Stations} WHERE name = $1", connection, transaction))
+        {
+            command.Parameters.Add(new NpgsqlParameter { Value = name });
+            deleted = await command.ExecuteNonQueryAsync(cancellationToken) == 1;
+        }
+
+        await DeleteStepsAsync(connection, transaction, name, cancellationToken);
+        await transaction.CommitAsync(cancellationToken);
+        return deleted;
     }
 
-    public async Task<bool> CommitStepAsync(StationRecord next, long expectedSequence, CancellationToken cancellationToken)
+    public async Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken)
     {
         await EnsureSchemaAsync(cancellationToken);
+        await using var connection = await dataSource.OpenConnectionAsync(cancellationToken);
+        await using var transaction = await connection.BeginTransactionAsync(cancellationToken);
 
         // The guard in the WHERE clause is the last word between instances: the row lock makes a second writer
         // re-check it after the first commits, and find the sequence moved.
-        await using var command = dataSource.CreateCommand($"""
-            UPDATE {Stations} SET sequence = $4, step_count = $5, estimate = $6, last_applied_input = $7, last_first_move = $8,
-                last_request_hash = $9, last_answer = $10, updated_at = $11
-            WHERE name = $1 AND model_id = $3 AND sequence = $12 AND model_reference = $2
-            """);
-        AddStation(command, next);
-        command.Parameters.Add(new NpgsqlParameter { Value = expectedSequence });
-        return await command.ExecuteNonQueryAsync(cancellationToken) == 1;
+        await using (var update = new NpgsqlCommand($"""
+            UPDATE {Stations} SET model_id = $3, sequence = $5, step_count = $6, estimate = $7, last_applied_input = $8,
+                last_first_move = $9, last_request_hash = $10, last_answer = $11, last_timestamp = $12, updated_at = $13
+            WHERE name = $1 AND model_reference = $2 AND detail = $4 AND sequence = $14 AND model_id = $15
+            """, connection, transaction))
+        {
+            AddStation(update, commit.Next);
+            update.Parameters.Add(new NpgsqlParameter { Value = commit.ExpectedSequence });
+            update.Parameters.Add(new NpgsqlParameter { Value = commit.ExpectedModelId });
+            if (await update.ExecuteNonQueryAsync(cancellationToken) != 1)
+            {
+                await transaction.RollbackAsync(cancellationToken);
+                return false;
+            }
+        }
+
+        if (commit.Entry is { } entry)
+        {
+            await using var log = new NpgsqlCommand($"""
+                INSERT INTO {StationSteps} ({StationStepLog.Columns}) VALUES ($1, $2, $3, $4, $5)
+                ON CONFLICT (name, sequence) DO UPDATE SET stepped_at = excluded.stepped_at, request = excluded.request, answer = excluded.answer
+                """, connection, transaction);
+            log.Parameters.Add(new NpgsqlParameter { Value = entry.Name });
+            log.Parameters.Add(new NpgsqlParameter { Value = entry.Sequence });
+            log.Parameters.Add(new NpgsqlParameter { Value = StoreTime.ToStored(entry.SteppedAt) });
+            log.Parameters.Add(new NpgsqlParameter { Value = entry.Request });
+            log.Parameters.Add(new NpgsqlParameter { Value = entry.Answer });
+            await log.ExecuteNonQueryAsync(cancellationToken);
+
+            await using var trim = new NpgsqlCommand($"DELETE FROM {StationSteps} WHERE name = $1 AND sequence <= $2", connection, transaction);
+            trim.Parameters.Add(new NpgsqlParameter { Value = entry.Name });
+            trim.Parameters.Add(new NpgsqlParameter { Value = entry.Sequence - commit.HistoryLength });
+            await trim.ExecuteNonQueryAsync(cancellationToken);
+        }
+
+        await transaction.CommitAsync(cancellationToken);
+        return true;
+    }
+
+    public async Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken)
+    {
+        await EnsureSchemaAsync(cancellationToken);
+        await using var command = dataSource.CreateCommand($"SELECT {StationStepLog.Columns} FROM {StationSteps} WHERE name = $1 ORDER BY sequence DESC LIMIT $2");
+        command.Parameters.Add(new NpgsqlParameter { Value = name });
+        command.Parameters.Add(new NpgsqlParameter { Value = limit });
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        var steps = new List<StationStepLog>();
+        while (await reader.ReadAsync(cancellationToken))
+        {
+            steps.Add(StationStepLog.Read(reader));
+        }
+
+        steps.Reverse();
+        return steps;
+    }
+
+    private async Task DeleteStepsAsync(NpgsqlConnection connection, NpgsqlTransaction transaction, string name, CancellationToken cancellationToken)
+    {
+        await using var command = new NpgsqlCommand($"DELETE FROM {StationSteps} WHERE name = $1", connection, transaction);
+        command.Parameters.Add(new NpgsqlParameter { Value = name });
+        await command.ExecuteNonQueryAsync(cancellationToken);
     }
 
     private static void AddStation(NpgsqlCommand command, StationRecord s)
@@ -85,6 +158,7 @@ public sealed partial class PostgresModelStore : IStationStore
         command.Parameters.Add(new NpgsqlParameter { Value = s.Name });
         command.Parameters.Add(new NpgsqlParameter { Value = s.ModelReference });
         command.Parameters.Add(new NpgsqlParameter { Value = s.ModelId });
+        command.Parameters.Add(new NpgsqlParameter { Value = s.Detail });
         command.Parameters.Add(new NpgsqlParameter { Value = s.Sequence });
         command.Parameters.Add(new NpgsqlParameter { Value = s.StepCount });
         command.Parameters.Add(Text(s.Estimate));
@@ -92,6 +166,7 @@ public sealed partial class PostgresModelStore : IStationStore
         command.Parameters.Add(Text(s.LastFirstMove));
         command.Parameters.Add(Text(s.LastRequestHash));
         command.Parameters.Add(Text(s.LastAnswer));
+        command.Parameters.Add(new NpgsqlParameter { Value = s.LastTimestamp is { } t ? StoreTime.ToTicks(t) : DBNull.Value, NpgsqlDbType = NpgsqlDbType.Bigint });
         command.Parameters.Add(new NpgsqlParameter { Value = StoreTime.ToStored(s.UpdatedAt) });
     }
 

@@ -48,5 +48,18 @@ internal static class SqliteMigrations
                 last_answer TEXT,
                 updated_at INTEGER NOT NULL);
             """),
+        // Stations answer with a whole plan on request, bridge missed samples by the plant's timestamps and keep their
+        // last steps. Existing stations keep answering with the first move.
+        new(3, "station detail, timestamps and step history", """
+            ALTER TABLE stations ADD COLUMN detail TEXT NOT NULL DEFAULT 'first-move';
+            ALTER TABLE stations ADD COLUMN last_timestamp INTEGER;
+            CREATE TABLE station_steps (
+                name TEXT NOT NULL,
+                sequence INTEGER NOT NULL,
+                stepped_at INTEGER NOT NULL,
+                request TEXT NOT NULL,
+                answer TEXT NOT NULL,
+                PRIMARY KEY (name, sequence)) WITHOUT ROWID;
+            """),
     ]);
 }

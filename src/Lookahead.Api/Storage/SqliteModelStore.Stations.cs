@@ -2,24 +2,22 @@ using Microsoft.Data.Sqlite;
 
 namespace Lookahead.Api.Storage;
 
-/// <summary>The stations table of the SQLite store, on the same durable connections as the models.</summary>
+/// <summary>The stations and station_steps tables of the SQLite store, on the same durable connections as the models.</summary>
 public sealed partial class SqliteModelStore : IStationStore
 {
-    private const string StationColumns =
-        "name, model_reference, model_id, sequence, step_count, estimate, last_applied_input, last_first_move, last_request_hash, last_answer, updated_at";
-
     public async Task<bool> PutStationAsync(StationRecord station, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
 
-        // BEGIN IMMEDIATE: whether the name existed and the write are one decision.
+        // BEGIN IMMEDIATE: whether the name existed, the write and the cleared history are one decision.
         await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
         bool existed = await ScalarAsync<string>(connection, transaction, "SELECT name FROM stations WHERE name = $name", ("$name", station.Name), cancellationToken) is not null;
         await using var command = connection.CreateCommand();
         command.Transaction = transaction;
         command.CommandText = $"""
-            INSERT OR REPLACE INTO stations ({StationColumns})
-            VALUES ($name, $reference, $model, $sequence, $steps, $estimate, $applied, $move, $hash, $answer, $at)
+            INSERT OR REPLACE INTO stations ({StationRecord.Columns})
+            VALUES ($name, $reference, $model, $detail, $sequence, $steps, $estimate, $applied, $move, $hash, $answer, $timestamp, $at);
+            DELETE FROM station_steps WHERE name = $name;
             """;
         AddStation(command, station);
         await command.ExecuteNonQueryAsync(cancellationToken);
@@ -31,7 +29,7 @@ public sealed partial class SqliteModelStore : IStationStore
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = $"SELECT {StationColumns} FROM stations WHERE name = $name";
+        command.CommandText = $"SELECT {StationRecord.Columns} FROM stations WHERE name = $name";
         command.Parameters.AddWithValue("$name", name);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
         return await reader.ReadAsync(cancellationToken) ? StationRecord.Read(reader) : null;
@@ -42,7 +40,7 @@ public sealed partial class SqliteModelStore : IStationStore
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
         command.CommandText = $"""
-            SELECT {StationColumns} FROM stations ORDER BY name LIMIT $limit OFFSET $offset;
+            SELECT {StationRecord.Columns} FROM stations ORDER BY name LIMIT $limit OFFSET $offset;
             SELECT COUNT(*) FROM stations;
             """;
         command.Parameters.AddWithValue("$limit", limit);
@@ -62,27 +60,76 @@ public sealed partial class SqliteModelStore : IStationStore
     public async Task<bool> DeleteStationAsync(string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
-        await using var command = connection.CreateCommand();
-        command.CommandText = "DELETE FROM stations WHERE name = $name";
-        command.Parameters.AddWithValue("$name", name);
-        return await command.ExecuteNonQueryAsync(cancellationToken) == 1;
+        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
+        bool deleted = await ExecuteAsync(connection, transaction, "DELETE FROM stations WHERE name = $name", name, cancellationToken) == 1;
+        await ExecuteAsync(connection, transaction, "DELETE FROM station_steps WHERE name = $name", name, cancellationToken);
+        await transaction.CommitAsync(cancellationToken);
+        return deleted;
     }
 
-    public async Task<bool> CommitStepAsync(StationRecord next, long expectedSequence, CancellationToken cancellationToken)
+    public async Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+
+        // BEGIN IMMEDIATE: the guarded update and the history entry land together or not at all.
+        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
+        await using (var update = connection.CreateCommand())
+        {
+            update.Transaction = transaction;
+            update.CommandText = """
+                UPDATE stations SET model_id = $model, sequence = $sequence, step_count = $steps, estimate = $estimate,
+                    last_applied_input = $applied, last_first_move = $move, last_request_hash = $hash, last_answer = $answer,
+                    last_timestamp = $timestamp, updated_at = $at
+                WHERE name = $name AND sequence = $expected AND model_id = $expectedModel AND model_reference = $reference
+                    AND detail = $detail
+                """;
+            AddStation(update, commit.Next);
+            update.Parameters.AddWithValue("$expected", commit.ExpectedSequence);
+            update.Parameters.AddWithValue("$expectedModel", commit.ExpectedModelId);
+            if (await update.ExecuteNonQueryAsync(cancellationToken) != 1)
+            {
+                await transaction.RollbackAsync(cancellationToken);
+                return false;
+            }
+        }
+
+        if (commit.Entry is { } entry)
+        {
+            await using var log = connection.CreateCommand();
+            log.Transaction = transaction;
+            log.CommandText = """
+                INSERT OR REPLACE INTO station_steps (name, sequence, stepped_at, request, answer) VALUES ($name, $sequence, $at, $request, $answer);
+                DELETE FROM station_steps WHERE name = $name AND sequence <= $sequence - $keep;
+                """;
+            log.Parameters.AddWithValue("$name", entry.Name);
+            log.Parameters.AddWithValue("$sequence", entry.Sequence);
+            log.Parameters.AddWithValue("$at", StoreTime.ToStored(entry.SteppedAt));
+            log.Parameters.AddWithValue("$request", entry.Request);
+            log.Parameters.AddWithValue("$answer", entry.Answer);
+            log.Parameters.AddWithValue("$keep", commit.HistoryLength);
+            await log.ExecuteNonQueryAsync(cancellationToken);
+        }
+
+        await transaction.CommitAsync(cancellationToken);
+        return true;
+    }
+
+    public async Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
+        command.CommandText = $"SELECT {StationStepLog.Columns} FROM station_steps WHERE name = $name ORDER BY sequence DESC LIMIT $limit";
+        command.Parameters.AddWithValue("$name", name);
+        command.Parameters.AddWithValue("$limit", limit);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        var steps = new List<StationStepLog>();
+        while (await reader.ReadAsync(cancellationToken))
+        {
+            steps.Add(StationStepLog.Read(reader));
+        }
 
-        // One statement is its own transaction: the guard and the write cannot be separated by another writer.
-        command.CommandText = """
-            UPDATE stations SET sequence = $sequence, step_count = $steps, estimate = $estimate,
-                last_applied_input = $applied, last_first_move = $move, last_request_hash = $hash, last_answer = $answer,
-                updated_at = $at
-            WHERE name = $name AND sequence = $expected AND model_id = $model AND model_reference = $reference
-            """;
-        AddStation(command, next);
-        command.Parameters.AddWithValue("$expected", expectedSequence);
-        return await command.ExecuteNonQueryAsync(cancellationToken) == 1;
+        steps.Reverse();
+        return steps;
     }
 
     private static void AddStation(SqliteCommand command, StationRecord s)
@@ -90,6 +137,7 @@ public sealed partial class SqliteModelStore : IStationStore
         command.Parameters.AddWithValue("$name", s.Name);
         command.Parameters.AddWithValue("$reference", s.ModelReference);
         command.Parameters.AddWithValue("$model", s.ModelId);
+        command.Parameters.AddWithValue("$detail", s.Detail);
         command.Parameters.AddWithValue("$sequence", s.Sequence);
         command.Parameters.AddWithValue("$steps", s.StepCount);
         command.Parameters.AddWithValue("$estimate", (object?)s.Estimate ?? DBNull.Value);
@@ -97,6 +145,7 @@ public sealed partial class SqliteModelStore : IStationStore
         command.Parameters.AddWithValue("$move", (object?)s.LastFirstMove ?? DBNull.Value);
         command.Parameters.AddWithValue("$hash", (object?)s.LastRequestHash ?? DBNull.Value);
         command.Parameters.AddWithValue("$answer", (object?)s.LastAnswer ?? DBNull.Value);
+        command.Parameters.AddWithValue("$timestamp", s.LastTimestamp is { } t ? StoreTime.ToTicks(t) : DBNull.Value);
         command.Parameters.AddWithValue("$at", StoreTime.ToStored(s.UpdatedAt));
     }
 }

@@ -59,4 +59,19 @@ public enum WarningCode
 
     /// <summary>A station's first step gave no applied input: the model's operating-point input was taken as the input the plant holds.</summary>
     AppliedInputFromOperatingPoint,
+
+    /// <summary>A station's step came more than 1.5 sample times after the last one: the estimate was propagated through the missed samples with the applied input held. Count: the samples missed.</summary>
+    SamplesMissed,
+
+    /// <summary>A station's step came after more missed samples than the station propagates through: its estimate started over from this measurement. Count: the samples missed.</summary>
+    StationRestartedAfterGap,
+
+    /// <summary>A station's alias now names another model of the same dimensions: the step used it and carried the estimate over.</summary>
+    ModelChangedEstimateKept,
+
+    /// <summary>A station's alias now names a model of other dimensions: the step used it and started the estimate over from this measurement.</summary>
+    ModelChangedEstimateRestarted,
+
+    /// <summary>A station's alias no longer exists: the step used the model the station last stepped with.</summary>
+    AliasGoneModelKept,
 }

@@ -139,20 +139,64 @@ public abstract class ModelStoreContract : IAsyncLifetime
     {
         var stations = (IStationStore)Store;
         await stations.PutStationAsync(Station("loop", 0), default);
-        var first = Station("loop", 1) with { StepCount = 1, Estimate = "{}", LastRequestHash = "h1", LastAnswer = """{"sequence":1}""", UpdatedAt = T0.AddMinutes(1) };
+        var first = Station("loop", 1) with
+        {
+            StepCount = 1, Estimate = "{}", LastRequestHash = "h1", LastAnswer = """{"sequence":1}""", LastTimestamp = T0.AddTicks(12_345_678), UpdatedAt = T0.AddMinutes(1),
+        };
 
-        Assert.True(await stations.CommitStepAsync(first, 0, default));
-        Assert.False(await stations.CommitStepAsync(first with { Sequence = 2, LastRequestHash = "h2" }, 0, default));
+        Assert.True(await stations.CommitStepAsync(Commit(first, 0), default));
+        Assert.False(await stations.CommitStepAsync(Commit(first with { Sequence = 2, LastRequestHash = "h2" }, 0), default));
         Assert.Equal(first, await stations.GetStationAsync("loop", default));
+        Assert.Equal([0L], (await stations.GetStepsAsync("loop", 10, default)).Select(s => s.Sequence));
 
         // A station re-bound to another model meanwhile refuses a step computed for the old binding.
         await stations.PutStationAsync(Station("loop", 0) with { ModelId = Id("other") }, default);
-        Assert.False(await stations.CommitStepAsync(first, 0, default));
-        Assert.False(await stations.CommitStepAsync(Station("ghost", 1), 0, default));
+        Assert.False(await stations.CommitStepAsync(Commit(first, 0), default));
+        Assert.False(await stations.CommitStepAsync(Commit(Station("ghost", 1), 0), default));
+        Assert.Empty(await stations.GetStepsAsync("loop", 10, default));
     }
 
+    [StoreFact]
+    public async Task A_step_may_move_the_station_to_the_model_its_alias_names_now()
+    {
+        var stations = (IStationStore)Store;
+        await stations.PutStationAsync(Station("follower", 0) with { ModelReference = "tuned" }, default);
+        var moved = Station("follower", 1) with { ModelReference = "tuned", ModelId = Id("b"), StepCount = 1 };
+
+        Assert.False(await stations.CommitStepAsync(new StationCommit(moved, 0, Id("b"), null, 10), default));
+        Assert.True(await stations.CommitStepAsync(new StationCommit(moved, 0, Id("a"), null, 10), default));
+        Assert.Equal(Id("b"), (await stations.GetStationAsync("follower", default))!.ModelId);
+    }
+
+    [StoreFact]
+    public async Task History_keeps_the_newest_steps_oldest_first_and_goes_with_the_station()
+    {
+        var stations = (IStationStore)Store;
+        await stations.PutStationAsync(Station("kept", 0), default);
+        await stations.PutStationAsync(Station("other", 0), default);
+        for (long k = 0; k < 7; k++)
+        {
+            var next = Station("kept", k + 1) with { StepCount = k + 1 };
+            Assert.True(await stations.CommitStepAsync(Commit(next, k, historyLength: 3), default));
+        }
+
+        await stations.CommitStepAsync(Commit(Station("other", 1), 0), default);
+
+        var steps = await stations.GetStepsAsync("kept", 10, default);
+        Assert.Equal([4L, 5L, 6L], steps.Select(s => s.Sequence));
+        Assert.Equal($$"""{"step":6}""", steps[^1].Request);
+        Assert.Equal([5L, 6L], (await stations.GetStepsAsync("kept", 2, default)).Select(s => s.Sequence));
+
+        Assert.True(await stations.DeleteStationAsync("kept", default));
+        Assert.Empty(await stations.GetStepsAsync("kept", 10, default));
+        Assert.Single(await stations.GetStepsAsync("other", 10, default));
+    }
+
+    private static StationCommit Commit(StationRecord next, long expected, int historyLength = 10) =>
+        new(next, expected, next.ModelId, new StationStepLog(next.Name, expected, T0, $$"""{"step":{{expected}}}""", "{}"), historyLength);
+
     private static StationRecord Station(string name, long sequence) =>
-        new(name, Id("a"), Id("a"), sequence, 0, null, null, null, null, null, T0);
+        new(name, Id("a"), Id("a"), "first-move", sequence, 0, null, null, null, null, null, null, T0);
 
     protected static string Id(string key) => Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(Encoding.UTF8.GetBytes(key)));
 
