@@ -45,6 +45,18 @@ public static class TestModels
         }
         """;
 
+    /// <summary>Two zones in engineering units with an output-disturbance estimator, a move weight, input and rate limits (invented numbers).</summary>
+    public const string TwoZonesWithEstimator = """
+        {
+          "name": "two-zones-station",
+          "plant": { "a": [[0.9, 0.05], [0.04, 0.85]], "b": [[0.1, 0.0], [0.02, 0.08]], "c": [[1, 0], [0, 1]], "sampleTime": 60, "timeDomain": "discrete" },
+          "cost": { "horizon": 15, "outputWeight": [1.0, 1.0], "inputWeight": [0.05, 0.05], "inputRateWeight": [0.1, 0.1] },
+          "limits": { "inputMin": [0, 0], "inputMax": [100, 100], "inputRateMin": [-5, -5], "inputRateMax": [5, 5] },
+          "operatingPoint": { "state": [-20, -20], "input": [60, 60], "output": [-20, -20] },
+          "estimator": { "processNoise": [1e-4, 1e-4, 1e-2, 1e-2], "measurementNoise": [1e-3, 1e-3] }
+        }
+        """;
+
     public static JsonNode Node(string json) => JsonNode.Parse(json)!;
 
     public static string DemoDocument => File.ReadAllText(Path.Combine(AppContext.BaseDirectory, "Demo", "cold-store.json"));
