@@ -10,11 +10,24 @@ public static class ApplicationBuilderExtensions
 {
     public static WebApplication UseLookaheadPipeline(this WebApplication app)
     {
+        app.UseTraceIdHeader();
         app.UseExceptionHandler();
         app.UseStatusCodePages();
         app.UseSerilogRequestLogging(o =>
         {
+            // The configured logger, not the static one (left silent on purpose, so two hosts in one process never mix).
+            o.Logger = app.Services.GetRequiredService<Serilog.ILogger>();
             o.MessageTemplate = "HTTP {RequestMethod} {RequestPath} responded {StatusCode} in {Elapsed:0.000} ms";
+            o.EnrichDiagnosticContext = (log, context) =>
+            {
+                // The route template, not the path: ids and names stay out of the field a dashboard groups by.
+                if (context.GetEndpoint() is RouteEndpoint endpoint)
+                {
+                    log.Set("RequestRoute", endpoint.RoutePattern.RawText);
+                }
+
+                log.Set("TraceId", TraceContext.Id(context));
+            };
             o.GetLevel = (context, _, exception) =>
                 exception is not null || context.Response.StatusCode >= 500 ? LogEventLevel.Error
                 : context.Request.Path.StartsWithSegments("/health") || context.Request.Path.StartsWithSegments("/metrics") ? LogEventLevel.Verbose

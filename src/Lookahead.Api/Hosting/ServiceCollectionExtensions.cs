@@ -5,6 +5,10 @@ using Lookahead.Api.Storage;
 using Microsoft.AspNetCore.Http.Json;
 using Microsoft.AspNetCore.Server.Kestrel.Core;
 using Microsoft.Extensions.Options;
+using OpenTelemetry;
+using OpenTelemetry.Exporter;
+using OpenTelemetry.Resources;
+using OpenTelemetry.Trace;
 using Prometheus;
 
 namespace Lookahead.Api.Hosting;
@@ -27,10 +31,17 @@ public static class ServiceCollectionExtensions
         services.AddLookaheadProblems();
         services.AddLookaheadRateLimiting();
         services.AddLookaheadOpenApi();
+        services.AddLookaheadTracing();
         services.AddSingleton(TimeProvider.System);
 
         // One registry per application instance, so two hosts in one process (as in tests) never share counters.
-        services.AddSingleton(_ => Metrics.NewCustomRegistry());
+        // Runtime figures (GC collections, heap and working set, threads, CPU) sit beside the service's own.
+        services.AddSingleton(_ =>
+        {
+            var registry = Metrics.NewCustomRegistry();
+            DotNetStats.Register(registry);
+            return registry;
+        });
         services.AddSingleton<RequestBodyReader>();
         services.AddCatalog();
         services.AddHostedService<DemoModelSeeder>();
@@ -88,7 +99,7 @@ public static class ServiceCollectionExtensions
         {
             var problem = context.ProblemDetails;
             problem.Instance ??= context.HttpContext.Request.Path;
-            problem.Extensions["traceId"] = context.HttpContext.TraceIdentifier;
+            problem.Extensions["traceId"] = TraceContext.Id(context.HttpContext);
             if (!problem.Extensions.ContainsKey("errors"))
             {
                 // Status-code pages (unknown route, wrong method) carry the same shape as every other problem.
@@ -98,6 +109,36 @@ public static class ServiceCollectionExtensions
         });
         services.AddExceptionHandler<ProblemExceptionHandler>();
     }
+
+    /// <summary>
+    /// Every request becomes a span in the caller's W3C trace (or a new one), so its trace id exists for problems, logs
+    /// and the response header; spans leave the process only when an OTLP endpoint is configured.
+    /// </summary>
+    private static void AddLookaheadTracing(this IServiceCollection services)
+    {
+        services.AddOptions<TelemetryOptions>().BindConfiguration(TelemetryOptions.Section)
+            .Validate(o => o.OtlpTracesEndpoint is null || Uri.TryCreate(o.OtlpTracesEndpoint, UriKind.Absolute, out _), "Telemetry:OtlpTracesEndpoint must be an absolute URI")
+            .ValidateOnStart();
+        services.AddOpenTelemetry()
+            .ConfigureResource(r => r.AddService("lookahead"))
+            .WithTracing(tracing => tracing
+                .AddAspNetCoreInstrumentation(o => o.Filter = context =>
+                    !context.Request.Path.StartsWithSegments("/health") && !context.Request.Path.StartsWithSegments("/metrics"))
+                .AddProcessor(sp =>
+                {
+                    var options = sp.GetRequiredService<IOptions<TelemetryOptions>>().Value;
+                    if (options.OtlpTracesEndpoint is not { } endpoint)
+                    {
+                        return new NoExport();
+                    }
+
+                    var exporter = new OtlpTraceExporter(new OtlpExporterOptions { Endpoint = new Uri(endpoint), Protocol = OtlpExportProtocol.HttpProtobuf });
+                    return new BatchActivityExportProcessor(exporter);
+                }));
+    }
+
+    /// <summary>Spans are made (for their ids) but go nowhere.</summary>
+    private sealed class NoExport : BaseProcessor<System.Diagnostics.Activity>;
 
     private static void AddLookaheadRateLimiting(this IServiceCollection services)
     {

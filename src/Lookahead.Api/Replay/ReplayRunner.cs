@@ -95,14 +95,19 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
                     });
 
                 await sink.WriteAsync(batch, cancellationToken);
+                int batchFailed = 0;
                 for (int i = 0; i < batch.Count; i++)
                 {
                     if (batch[i].Outcome is null)
                     {
-                        failed++;
+                        batchFailed++;
                     }
                 }
 
+                // Counted per batch written, so a replay cut short (client gone, shutdown) still shows what it did.
+                metrics.Rows.WithLabels(format, "planned").Inc(batch.Count - batchFailed);
+                metrics.Rows.WithLabels(format, "error").Inc(batchFailed);
+                failed += batchFailed;
                 rows += batch.Count;
                 (current, spare) = (spare, current);
                 filled = await filling;
@@ -116,8 +121,6 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
             }
         }
 
-        metrics.Rows.WithLabels(format, "planned").Inc(rows - failed);
-        metrics.Rows.WithLabels(format, "error").Inc(failed);
         var summary = new ReplaySummary(rows, failed, []);
         await sink.CompleteAsync(summary, cancellationToken);
         return new ReplayRun(summary, []);

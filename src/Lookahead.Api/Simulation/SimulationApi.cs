@@ -62,6 +62,8 @@ public static class SimulationApi
             return ApiProblems.Validation(ex.Errors);
         }
 
+        services.Metrics.SimulatedPlans.WithLabels("optimal").Inc(result.Steps - result.NonOptimalSteps);
+        services.Metrics.SimulatedPlans.WithLabels("not-optimal").Inc(result.NonOptimalSteps);
         if (responseFormat == ResponseFormat.Svg)
         {
             var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs);

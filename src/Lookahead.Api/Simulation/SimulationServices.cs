@@ -1,5 +1,6 @@
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
+using Lookahead.Api.Plans;
 using Serilog;
 
 namespace Lookahead.Api.Simulation;
@@ -10,4 +11,5 @@ public sealed record SimulationServices(
     ModelCatalog Catalog,
     RequestBodyReader Reader,
     IDiagnosticContext Log,
+    PlanMetrics Metrics,
     CancellationToken CancellationToken);

@@ -35,7 +35,8 @@ public sealed class ServiceProcess : IDisposable
     public Uri Address { get; }
 
     /// <summary>Starts the service on the store and returns once /health/ready answers (the store is reachable).</summary>
-    public static async Task<ServiceProcess> StartAsync(ServiceStore store)
+    /// <param name="settings">Further settings (configuration keys such as "Replay:BatchSize"), passed as environment variables.</param>
+    public static async Task<ServiceProcess> StartAsync(ServiceStore store, IReadOnlyDictionary<string, string>? settings = null)
     {
         if (!File.Exists(Repository.ApiAssembly))
         {
@@ -53,7 +54,7 @@ public sealed class ServiceProcess : IDisposable
         start.ArgumentList.Add(Repository.ApiAssembly);
         start.ArgumentList.Add("--urls");
         start.ArgumentList.Add(address.ToString().TrimEnd('/'));
-        foreach (var (key, value) in store.Settings)
+        foreach (var (key, value) in store.Settings.Concat(settings ?? new Dictionary<string, string>()))
         {
             start.Environment[EnvironmentName(key)] = value;
         }
