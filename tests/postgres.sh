@@ -18,7 +18,7 @@ start_test_postgres() {
   if [ "$(id -u)" = 0 ]; then chown postgres "$PG_DIR"; run_as=(runuser -u postgres --); fi
   "${run_as[@]}" "$PG_BIN/initdb" -D "$PG_DIR/data" -U postgres -A trust >/dev/null || return 1
   "${run_as[@]}" "$PG_BIN/pg_ctl" -D "$PG_DIR/data" -l "$PG_DIR/log" -w \
-    -o "-c listen_addresses=127.0.0.1 -p $PG_PORT -k $PG_DIR -c fsync=off" start >/dev/null || return 1
+    -o "-c listen_addresses=127.0.0.1 -p $PG_PORT -k $PG_DIR -c fsync=off -c max_connections=300" start >/dev/null || return 1
   export LOOKAHEAD_TEST_POSTGRES="Host=127.0.0.1;Port=$PG_PORT;Username=postgres;Database=postgres;Pooling=true"
 }
 

@@ -67,52 +67,8 @@ public sealed partial class SqliteModelStore : IStationStore
         return deleted;
     }
 
-    public async Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken)
-    {
-        await using var connection = await OpenAsync(cancellationToken);
-
-        // BEGIN IMMEDIATE: the guarded update and the history entry land together or not at all.
-        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
-        await using (var update = connection.CreateCommand())
-        {
-            update.Transaction = transaction;
-            update.CommandText = """
-                UPDATE stations SET model_id = $model, sequence = $sequence, step_count = $steps, estimate = $estimate,
-                    last_applied_input = $applied, last_first_move = $move, last_request_hash = $hash, last_answer = $answer,
-                    last_timestamp = $timestamp, updated_at = $at
-                WHERE name = $name AND sequence = $expected AND model_id = $expectedModel AND model_reference = $reference
-                    AND detail = $detail
-                """;
-            AddStation(update, commit.Next);
-            update.Parameters.AddWithValue("$expected", commit.ExpectedSequence);
-            update.Parameters.AddWithValue("$expectedModel", commit.ExpectedModelId);
-            if (await update.ExecuteNonQueryAsync(cancellationToken) != 1)
-            {
-                await transaction.RollbackAsync(cancellationToken);
-                return false;
-            }
-        }
-
-        if (commit.Entry is { } entry)
-        {
-            await using var log = connection.CreateCommand();
-            log.Transaction = transaction;
-            log.CommandText = """
-                INSERT OR REPLACE INTO station_steps (name, sequence, stepped_at, request, answer) VALUES ($name, $sequence, $at, $request, $answer);
-                DELETE FROM station_steps WHERE name = $name AND sequence <= $sequence - $keep;
-                """;
-            log.Parameters.AddWithValue("$name", entry.Name);
-            log.Parameters.AddWithValue("$sequence", entry.Sequence);
-            log.Parameters.AddWithValue("$at", StoreTime.ToStored(entry.SteppedAt));
-            log.Parameters.AddWithValue("$request", entry.Request);
-            log.Parameters.AddWithValue("$answer", entry.Answer);
-            log.Parameters.AddWithValue("$keep", commit.HistoryLength);
-            await log.ExecuteNonQueryAsync(cancellationToken);
-        }
-
-        await transaction.CommitAsync(cancellationToken);
-        return true;
-    }
+    /// <summary>Through the store's one step writer: steps arriving together share a transaction and its fsync.</summary>
+    public Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken) => StepWriter.CommitAsync(commit);
 
     public async Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken)
     {
@@ -132,7 +88,7 @@ public sealed partial class SqliteModelStore : IStationStore
         return steps;
     }
 
-    private static void AddStation(SqliteCommand command, StationRecord s)
+    internal static void AddStation(SqliteCommand command, StationRecord s)
     {
         command.Parameters.AddWithValue("$name", s.Name);
         command.Parameters.AddWithValue("$reference", s.ModelReference);

@@ -7,12 +7,13 @@ namespace Lookahead.Api.Storage;
 /// caller hears about it (a registration survives SIGKILL and power loss alike). Its tables come from
 /// <see cref="SqliteMigrations"/>, brought up to date when the store is first used.
 /// </summary>
-public sealed partial class SqliteModelStore : IModelStore, IDisposable
+public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncDisposable
 {
     private readonly string connectionString;
     private readonly MigrationSequence migrations;
     private readonly SemaphoreSlim initialisation = new(1, 1);
     private volatile bool initialised;
+    private SqliteStepWriter? stepWriter;
 
     public SqliteModelStore(string path)
         : this(path, SqliteMigrations.Sequence)
@@ -174,7 +175,21 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable
         return await command.ExecuteNonQueryAsync(cancellationToken);
     }
 
-    public void Dispose() => initialisation.Dispose();
+    /// <summary>Station steps go through one writer, started with the first step.</summary>
+    private SqliteStepWriter StepWriter => LazyInitializer.EnsureInitialized(ref stepWriter, () => new SqliteStepWriter(OpenAsync));
+
+    public void Dispose() => DisposeAsync().AsTask().GetAwaiter().GetResult();
+
+    /// <summary>Lets the steps already queued commit (their callers are waiting), then releases the store.</summary>
+    public async ValueTask DisposeAsync()
+    {
+        if (stepWriter is not null)
+        {
+            await stepWriter.DisposeAsync();
+        }
+
+        initialisation.Dispose();
+    }
 
     public async Task PingAsync(CancellationToken cancellationToken)
     {

@@ -192,6 +192,29 @@ public abstract class ModelStoreContract : IAsyncLifetime
         Assert.Single(await stations.GetStepsAsync("other", 10, default));
     }
 
+    [StoreFact]
+    public async Task Concurrent_steps_of_many_stations_each_land_once_and_a_failed_guard_spoils_no_other()
+    {
+        var stations = (IStationStore)Store;
+        var names = Enumerable.Range(0, 60).Select(i => $"unit-{i:D3}").ToList();
+        foreach (var name in names)
+        {
+            await stations.PutStationAsync(Station(name, 0), default);
+        }
+
+        // Every station gets its right step and a stale one, all at once: only the right ones are written.
+        var right = names.Select(n => stations.CommitStepAsync(Commit(Station(n, 1) with { StepCount = 1 }, 0), default)).ToList();
+        var stale = names.Select(n => stations.CommitStepAsync(Commit(Station(n, 9) with { StepCount = 9 }, 8), default)).ToList();
+        Assert.All(await Task.WhenAll(right), Assert.True);
+        Assert.All(await Task.WhenAll(stale), Assert.False);
+        foreach (var name in names)
+        {
+            var stored = await stations.GetStationAsync(name, default);
+            Assert.Equal(1, stored!.Sequence);
+            Assert.Equal([0L], (await stations.GetStepsAsync(name, 5, default)).Select(s => s.Sequence));
+        }
+    }
+
     private static StationCommit Commit(StationRecord next, long expected, int historyLength = 10) =>
         new(next, expected, next.ModelId, new StationStepLog(next.Name, expected, T0, $$"""{"step":{{expected}}}""", "{}"), historyLength);
 
