@@ -8,6 +8,7 @@ public static class Program
     /// <c>--flops</c> prints the floating-point operation counts of one unconstrained plan and exits;
     /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
     /// <c>--demo-ratios</c> (add <c>engineering</c> for the demo as served) times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
+    /// <c>--model-memory [limits] n×m×N …</c> prints what compiled models keep in memory (<see cref="ModelMemory"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
@@ -21,6 +22,11 @@ public static class Program
         if (args.Contains("--demo-ratios", StringComparer.OrdinalIgnoreCase))
         {
             return DemoRatios.Run(Console.Out, engineering: args.Contains("engineering", StringComparer.OrdinalIgnoreCase));
+        }
+
+        if (args.Contains("--model-memory", StringComparer.OrdinalIgnoreCase))
+        {
+            return ModelMemory.Run([.. args.Where(a => !a.Equals("--model-memory", StringComparison.OrdinalIgnoreCase))], Console.Out);
         }
 
         int timeStates = Array.FindIndex(args, a => a.Equals("--time-states", StringComparison.OrdinalIgnoreCase));
