@@ -9,10 +9,17 @@ public static class Program
     /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
     /// <c>--demo-ratios</c> (add <c>engineering</c> for the demo as served) times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
     /// <c>--model-memory [limits] n×m×N …</c> prints what compiled models keep in memory (<see cref="ModelMemory"/>);
+    /// <c>--station-load BASE_URL …</c> runs concurrent station loops against a running service (<see cref="StationLoad"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
     {
+        int stationLoad = Array.FindIndex(args, a => a.Equals("--station-load", StringComparison.OrdinalIgnoreCase));
+        if (stationLoad >= 0)
+        {
+            return StationLoad.RunAsync(args[(stationLoad + 1)..], Console.Out).GetAwaiter().GetResult();
+        }
+
         if (args.Contains("--flops", StringComparer.OrdinalIgnoreCase))
         {
             FlopCounter.Print(Console.Out);

@@ -13,16 +13,20 @@ build_service() {
   dotnet build "$repo/src/Lookahead.Api/Lookahead.Api.csproj" -c Release -nologo -v quiet >/dev/null
 }
 
-# start_service [extra environment assignments...]
+# start_service [extra environment assignments...] — they come last, so they can override the defaults here.
+# service_cpus (a taskset list, e.g. 0,1): run the service on those processors only, from its start.
 start_service() {
   port="$(free_port)"
   base="http://127.0.0.1:$port"
+  local pin=()
+  if [ -n "${service_cpus:-}" ]; then pin=(taskset -c "$service_cpus"); fi
   (
     cd "$repo/src/Lookahead.Api/bin/Release/net10.0"
     # Request logs go to a file at Warning: the load tests measure the service, not the console.
-    exec env "$@" \
+    exec "${pin[@]}" env \
       Lookahead__Store__SqlitePath="$work_dir/lookahead.db" \
       Lookahead__Serilog__MinimumLevel__Default=Warning \
+      "$@" \
       dotnet Lookahead.Api.dll --urls "$base"
   ) >"$work_dir/service.log" 2>&1 &
   service_pid=$!
