@@ -123,7 +123,7 @@ public class ReplayEstimationTests
         var response = await client.PostAsync($"/v1/models/{id}/plans", csv.ToString(), "text/csv");
         var text = await response.Content.ReadAsStringAsync();
         Assert.True(response.StatusCode == HttpStatusCode.OK, text);
-        var lines = text.Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(SplitCsv).ToList();
+        var lines = CsvText.Records(text);
         Assert.Equal(["timestamp", "chiller_a", "chiller_b", "xhat_zone_a", "xhat_zone_b", "dhat1", "dhat2", "cost", "status", "message"], lines[0]);
         Assert.Equal(history.Count + 1, lines.Count);
 
@@ -265,7 +265,7 @@ public class ReplayEstimationTests
 
         // Row-level: a partly empty measurement and a short row are that row's errors; the next row is still answered.
         var rows = await client.PostAsync($"/v1/models/{id}/plans", "y1,y2,applied1,applied2\n-20,,60,60\n-20,-20,60\n-20,-20,60,60\n", "text/csv");
-        var lines = (await rows.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(SplitCsv).ToList();
+        var lines = CsvText.Records(await rows.Content.ReadAsStringAsync());
         Assert.Equal(HttpStatusCode.OK, rows.StatusCode);
         Assert.Equal("error", lines[1][^2]);
         Assert.Contains("measurement[1]: column 'y2' is empty", lines[1][^1], StringComparison.Ordinal);
@@ -287,7 +287,7 @@ public class ReplayEstimationTests
             -19.5,-20.3,-21,-19.5,55,65,5
             """;
 
-        var lines = (await (await client.PostAsync($"/v1/models/{id}/plans", Csv, "text/csv")).Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(SplitCsv).ToList();
+        var lines = CsvText.Records(await (await client.PostAsync($"/v1/models/{id}/plans", Csv, "text/csv")).Content.ReadAsStringAsync());
         Assert.Equal(["chiller_a", "chiller_b", "cost", "status", "message"], lines[0]);
         string[] disturbances = ["[25]", "null", "[5]"];
         for (int i = 0; i < disturbances.Length; i++)
@@ -311,7 +311,7 @@ public class ReplayEstimationTests
         var (client, id, factory) = await StartAsync(TestModels.TwoTanks);
         await using var _ = factory;
 
-        var lines = (await (await client.PostAsync($"/v1/models/{id}/plans", "level_1,level_2,v1\n0.5,-0.2,7\n", "text/csv")).Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(SplitCsv).ToList();
+        var lines = CsvText.Records(await (await client.PostAsync($"/v1/models/{id}/plans", "level_1,level_2,v1\n0.5,-0.2,7\n", "text/csv")).Content.ReadAsStringAsync());
 
         Assert.Equal(["v1", "valve_1", "valve_2", "cost", "status", "message"], lines[0]);
         Assert.Equal("7", lines[1][0]);
@@ -323,50 +323,6 @@ public class ReplayEstimationTests
     private static string F(double value) => value.ToString("R", CultureInfo.InvariantCulture);
 
     private static double D(string text) => double.Parse(text, NumberStyles.Float, CultureInfo.InvariantCulture);
-
-    /// <summary>Splits one CSV line, honouring double quotes (messages hold commas).</summary>
-    private static List<string> SplitCsv(string line)
-    {
-        var fields = new List<string>();
-        var field = new StringBuilder();
-        bool quoted = false;
-        for (int i = 0; i < line.Length; i++)
-        {
-            char c = line[i];
-            if (quoted)
-            {
-                if (c == '"' && i + 1 < line.Length && line[i + 1] == '"')
-                {
-                    field.Append('"');
-                    i++;
-                }
-                else if (c == '"')
-                {
-                    quoted = false;
-                }
-                else
-                {
-                    field.Append(c);
-                }
-            }
-            else if (c == '"')
-            {
-                quoted = true;
-            }
-            else if (c == ',')
-            {
-                fields.Add(field.ToString());
-                field.Clear();
-            }
-            else
-            {
-                field.Append(c);
-            }
-        }
-
-        fields.Add(field.ToString());
-        return fields;
-    }
 
     private static void AssertClose(IReadOnlyList<double> expected, IReadOnlyList<double> actual, double tolerance, string what)
     {

@@ -43,14 +43,19 @@ public static class ApplicationBuilderExtensions
     }
 
     /// <summary>Liveness, readiness and the metrics scrape; the features map their own routes.</summary>
+    /// <remarks>
+    /// Both helpers map every method; probes and scrapers read, so anything but GET and HEAD is answered 405 like any
+    /// other route's wrong method.
+    /// </remarks>
     public static WebApplication MapHostingEndpoints(this WebApplication app)
     {
+        var reads = new HttpMethodMetadata([HttpMethods.Get, HttpMethods.Head]);
         app.MapHealthChecks("/health/live", new HealthCheckOptions { Predicate = _ => false })
-            .WithName("Live").WithSummary("The process is up (checks nothing else)").WithTags("Health");
+            .WithMetadata(reads).WithName("Live").WithSummary("The process is up (checks nothing else)").WithTags("Health");
         app.MapHealthChecks("/health/ready", new HealthCheckOptions { Predicate = check => check.Tags.Contains("ready") })
-            .WithName("Ready").WithSummary("The store answers").WithTags("Health");
+            .WithMetadata(reads).WithName("Ready").WithSummary("The store answers").WithTags("Health");
         app.MapMetrics("/metrics", app.Services.GetRequiredService<CollectorRegistry>())
-            .WithName("Metrics").WithSummary("Prometheus metrics").WithTags("Health");
+            .WithMetadata(reads).WithName("Metrics").WithSummary("Prometheus metrics").WithTags("Health");
         return app;
     }
 }

@@ -16,6 +16,9 @@ namespace Lookahead.Api.Hosting;
 /// <summary>Service registrations, grouped by concern.</summary>
 public static class ServiceCollectionExtensions
 {
+    /// <summary>Longest request line (method, path with query, version) Kestrel reads before refusing it with 414.</summary>
+    public const int MaxRequestLineBytes = 16 * 1024;
+
     /// <summary>
     /// Everything the features stand on: options, JSON, problems, rate limiting, OpenAPI, metrics registry, store,
     /// catalog, demo and health checks. Features register their own services (Add… in their folders).
@@ -65,6 +68,11 @@ public static class ServiceCollectionExtensions
         {
             kestrel.Limits.MaxRequestBodySize = limits.Value.MaxBodyBytes;
             kestrel.AddServerHeader = false;
+
+            // Kestrel answers a request line over its limit (8 KiB by default) itself, with a bare 414 and no problem
+            // document. Ids and names are at most 64 characters, but a much longer one must still reach the route to be
+            // refused naming the field: 16 KiB lets a 10,000-character id through; longer lines keep Kestrel's 414.
+            kestrel.Limits.MaxRequestLineSize = MaxRequestLineBytes;
         });
     }
 

@@ -52,7 +52,7 @@ public static partial class JsonErrorDescriber
         return new JsonErrorDescription(new ProblemError(path, reason), line, position);
     }
 
-    /// <summary>"$.plant.a[0]" → "plant.a[0]"; "$" → "".</summary>
+    /// <summary>"$.plant.a[0]" → "plant.a[0]"; "$" → ""; a name the serializer quotes ("$.plant['a b']") → "plant.a b".</summary>
     public static string ToFieldPath(string? jsonPath)
     {
         if (string.IsNullOrEmpty(jsonPath) || jsonPath == "$")
@@ -60,7 +60,9 @@ public static partial class JsonErrorDescriber
             return "";
         }
 
-        return jsonPath.StartsWith("$.", StringComparison.Ordinal) ? jsonPath[2..] : jsonPath.TrimStart('$');
+        // Names with spaces, dots or quotes come as ['name'], which is not how the service writes paths.
+        string dotted = QuotedName().Replace(jsonPath, m => "." + m.Groups[1].Value.Replace("\\'", "'", StringComparison.Ordinal));
+        return dotted.StartsWith("$.", StringComparison.Ordinal) ? dotted[2..] : dotted.TrimStart('$');
     }
 
     private static string Append(string path, string relative) =>
@@ -93,6 +95,9 @@ public static partial class JsonErrorDescriber
 
     [GeneratedRegex("could not be converted to ([^ .]+(?:\\.[^ .]+)*?)\\. ")]
     private static partial Regex ConvertedTo();
+
+    [GeneratedRegex(@"\['((?:[^'\\]|\\.)*)'\]")]
+    private static partial Regex QuotedName();
 
     [GeneratedRegex("The JSON property '([^']+)'")]
     private static partial Regex PropertyName();

@@ -29,6 +29,7 @@ public static class PlanRequestParser
             bool sawState = false, sawReference = false, sawPrevious = false, sawDisturbance = false, sawEstimate = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
+                JsonText.CheckName(ref reader);
                 if (reader.ValueTextEquals("state"u8))
                 {
                     Duplicate(ref sawState, row, pathPrefix + "state");
@@ -80,7 +81,7 @@ public static class PlanRequestParser
                 }
                 else
                 {
-                    row.AddError(pathPrefix + reader.GetString(), JsonErrorDescriber.UnknownField);
+                    row.AddError(pathPrefix + JsonText.GetString(ref reader), JsonErrorDescriber.UnknownField);
                     reader.Read();
                     reader.Skip();
                 }
@@ -227,22 +228,25 @@ public static class PlanRequestParser
             return;
         }
 
-        bool state = false, disturbance = false;
+        bool state = false, disturbance = false, sawState = false, sawDisturbance = false;
         while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
         {
+            JsonText.CheckName(ref reader);
             if (reader.ValueTextEquals("state"u8))
             {
+                Duplicate(ref sawState, row, path + ".state");
                 reader.Read();
                 state = ReadVector(ref reader, row.State, path + ".state", row);
             }
             else if (reader.ValueTextEquals("disturbance"u8))
             {
+                Duplicate(ref sawDisturbance, row, path + ".disturbance");
                 reader.Read();
                 disturbance = ReadVector(ref reader, row.DisturbanceEstimate, path + ".disturbance", row);
             }
             else
             {
-                row.AddError($"{path}.{reader.GetString()}", JsonErrorDescriber.UnknownField);
+                row.AddError($"{path}.{JsonText.GetString(ref reader)}", JsonErrorDescriber.UnknownField);
                 reader.Read();
                 reader.Skip();
             }

@@ -62,7 +62,7 @@ public sealed class PlanRunner
         {
             foreach (var error in ex.Errors)
             {
-                call.AddError(error.Path, error.Reason);
+                call.AddError(FieldOf(call, error.Path), error.Reason);
             }
 
             return;
@@ -73,6 +73,10 @@ public sealed class PlanRunner
         durations[(int)route].Observe(elapsed.TotalSeconds);
         counts[(int)route, (int)call.Outcome.Value.Status].Inc();
     }
+
+    /// <summary>A plan from an estimate carries x̂ in the core's "state": an error about it names the field the client gave.</summary>
+    private static string FieldOf(PlanCall call, string path) =>
+        call.HasDisturbanceEstimate && (path == "state" || path.StartsWith("state[", StringComparison.Ordinal)) ? "estimate." + path : path;
 
     private static string Label(PlanRoute route) => route switch
     {

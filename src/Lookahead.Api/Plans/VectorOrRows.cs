@@ -1,5 +1,6 @@
 using System.Text.Json;
 using System.Text.Json.Serialization;
+using Lookahead.Api.Http;
 
 namespace Lookahead.Api.Plans;
 
@@ -25,8 +26,8 @@ public sealed class VectorOrRowsConverter : JsonConverter<VectorOrRows>
 
         bool rows = root.GetArrayLength() > 0 && root[0].ValueKind == JsonValueKind.Array;
         return rows
-            ? new VectorOrRows(root.EnumerateArray().Select(Numbers).ToArray(), false)
-            : new VectorOrRows([Numbers(root)], true);
+            ? new VectorOrRows(root.EnumerateArray().Select((row, k) => Numbers(row, $"[{k}]")).ToArray(), false)
+            : new VectorOrRows([Numbers(root, "")], true);
     }
 
     public override void Write(Utf8JsonWriter writer, VectorOrRows value, JsonSerializerOptions options)
@@ -46,9 +47,31 @@ public sealed class VectorOrRowsConverter : JsonConverter<VectorOrRows>
         writer.WriteEndArray();
     }
 
-    private static double[] Numbers(JsonElement array) => array.ValueKind == JsonValueKind.Array
-        ? array.EnumerateArray().Select(v => v.GetDouble()).ToArray()
-        : throw new JsonException("each row must be an array of numbers");
+    /// <summary>
+    /// The row's numbers. A number beyond double (1e400) reads as infinite and is refused at its own path, like every
+    /// other vector; JsonElement.GetDouble would throw a FormatException the serializer does not translate.
+    /// </summary>
+    private static double[] Numbers(JsonElement array, string path)
+    {
+        if (array.ValueKind != JsonValueKind.Array)
+        {
+            throw new JsonFieldException("each row must be an array of numbers", path);
+        }
+
+        var values = new double[array.GetArrayLength()];
+        int i = 0;
+        foreach (var value in array.EnumerateArray())
+        {
+            if (value.ValueKind != JsonValueKind.Number || !value.TryGetDouble(out values[i]) || !double.IsFinite(values[i]))
+            {
+                throw new JsonFieldException("must be a finite number", $"{path}[{i}]");
+            }
+
+            i++;
+        }
+
+        return values;
+    }
 
     private static void WriteNumbers(Utf8JsonWriter writer, double[] values)
     {

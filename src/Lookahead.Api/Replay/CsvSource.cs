@@ -188,7 +188,8 @@ internal sealed class CsvSource : IReplaySource, IAsyncDisposable
             return;
         }
 
-        if (!double.TryParse(text, NumberStyles.Float, CultureInfo.InvariantCulture, out double value) || !double.IsFinite(value))
+        // .NET's parser takes trailing NUL characters for the end of the number ("0\0" reads as 0): a NUL is never part of one.
+        if (text.Contains((byte)0) || !double.TryParse(text, NumberStyles.Float, CultureInfo.InvariantCulture, out double value) || !double.IsFinite(value))
         {
             row.AddError(path, $"column '{name}': '{Shorten(text)}' is not a finite number");
             return;

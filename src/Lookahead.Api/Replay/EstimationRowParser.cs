@@ -29,6 +29,7 @@ internal static class EstimationRowParser
             bool sawMeasurement = false, sawApplied = false, sawReference = false, sawDisturbance = false, applied = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
+                JsonText.CheckName(ref reader);
                 if (reader.ValueTextEquals("measurement"u8))
                 {
                     PlanRequestParser.Duplicate(ref sawMeasurement, row, pathPrefix + "measurement");
@@ -57,7 +58,7 @@ internal static class EstimationRowParser
                 }
                 else if (reader.ValueTextEquals("state"u8) || reader.ValueTextEquals("estimate"u8))
                 {
-                    row.AddError(pathPrefix + reader.GetString(), "this replay estimates from measurements (its first row has one): give 'measurement' and 'appliedInput', not a state");
+                    row.AddError(pathPrefix + JsonText.GetString(ref reader), "this replay estimates from measurements (its first row has one): give 'measurement' and 'appliedInput', not a state");
                     reader.Read();
                     reader.Skip();
                 }
@@ -69,7 +70,7 @@ internal static class EstimationRowParser
                 }
                 else
                 {
-                    row.AddError(pathPrefix + reader.GetString(), JsonErrorDescriber.UnknownField);
+                    row.AddError(pathPrefix + JsonText.GetString(ref reader), JsonErrorDescriber.UnknownField);
                     reader.Read();
                     reader.Skip();
                 }

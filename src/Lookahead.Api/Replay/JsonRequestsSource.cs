@@ -64,7 +64,9 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
     public async ValueTask<bool> FillAsync(ReplayBatch batch, CancellationToken cancellationToken)
     {
         batch.Clear();
-        while (!ended && !batch.IsFull && stage is not Stage.Done)
+
+        // Reading goes on past the end of the object: only whitespace may follow it, and anything else is reported.
+        while (!ended && !batch.IsFull)
         {
             var problem = await StepAsync(batch, cancellationToken);
             if (problem is not null)
@@ -188,6 +190,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
                         break;
                     }
 
+                    JsonText.CheckName(ref json);
                     if (json.ValueTextEquals("detail"u8))
                     {
                         if (!json.Read())
@@ -196,7 +199,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
                             return (beforePosition, true, null);
                         }
 
-                        var value = json.TokenType == JsonTokenType.String ? json.GetString() : null;
+                        var value = json.TokenType == JsonTokenType.String ? JsonText.GetString(ref json) : null;
                         if (!ReplayDetails.TryParse(value, out _))
                         {
                             return (safe, false, new ProblemError("detail", "must be 'first-move' or 'full'"));
@@ -235,7 +238,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
                     }
                     else
                     {
-                        return (safe, false, new ProblemError(json.GetString() ?? "", "is not a known field (expected 'detail' and 'requests')"));
+                        return (safe, false, new ProblemError(JsonText.GetString(ref json), "is not a known field (expected 'detail' and 'requests')"));
                     }
 
                     break;

@@ -59,6 +59,7 @@ internal static class ReplayModeProbe
 
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
+                JsonText.CheckName(ref reader);
                 if (reader.ValueTextEquals("state"u8) || reader.ValueTextEquals("estimate"u8))
                 {
                     state ??= reader.GetString();

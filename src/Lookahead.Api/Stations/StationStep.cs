@@ -221,6 +221,12 @@ public static class StationStep
             {
                 errors.Add(new($"{path}[{i}]", "must be a finite number"));
             }
+            else if (Math.Abs(values[i]) > ModelValidator.MaxMagnitude)
+            {
+                // A station keeps the estimate a step makes: a reading of 1e308 taken in track mode would leave it an
+                // estimate no later plan can start from. Its numbers are bounded like a model's own.
+                errors.Add(new($"{path}[{i}]", $"is {values[i]:g3}; a station refuses values beyond {ModelValidator.MaxMagnitude:g3} in magnitude (the bound on a model's own numbers), since it keeps the estimate they make"));
+            }
         }
     }
 }

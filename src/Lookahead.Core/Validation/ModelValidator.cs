@@ -39,6 +39,18 @@ public static class ModelValidator
     /// </summary>
     public const double MinHoldNorm = 2.220446049250313e-16;
 
+    /// <summary>
+    /// Shortest sample time accepted, in seconds: one 100 ns tick of the timestamps a station counts its samples by.
+    /// A shorter one could not be told from the next sample (and a subnormal one divides any gap into infinity).
+    /// </summary>
+    public const double MinSampleTime = 1.0 / TimeSpan.TicksPerSecond;
+
+    /// <summary>
+    /// Longest sample time accepted, in seconds: the whole span a timestamp can name (about 10,000 years). A longer one
+    /// has no sample after its first, and an enormous one (1e300 s) only carries overflow into every time it scales.
+    /// </summary>
+    public static readonly double MaxSampleTime = (DateTimeOffset.MaxValue - DateTimeOffset.MinValue).TotalSeconds;
+
     /// <summary>Returns every problem found; an empty list means the document is acceptable.</summary>
     public static IReadOnlyList<ValidationError> Validate(ModelDocument document, SizeLimits? limits = null)
     {
@@ -68,6 +80,11 @@ public static class ModelValidator
             return null;
         }
 
+        if (document.Name is { } name && HasControlCharacter(name))
+        {
+            errors.Add(new("name", ControlCharacterReason));
+        }
+
         if (document.Plant is null)
         {
             errors.Add(new("plant", "is required"));
@@ -78,7 +95,7 @@ public static class ModelValidator
             errors.Add(new("cost", "is required"));
         }
 
-        if (errors.Count > 0)
+        if (document.Plant is null || document.Cost is null)
         {
             return null;
         }
@@ -139,6 +156,10 @@ public static class ModelValidator
         if (!double.IsFinite(plant.SampleTime) || plant.SampleTime <= 0)
         {
             errors.Add(new("plant.sampleTime", "must be a finite number of seconds greater than 0"));
+        }
+        else if (plant.SampleTime < MinSampleTime || plant.SampleTime > MaxSampleTime)
+        {
+            errors.Add(new("plant.sampleTime", $"is {plant.SampleTime:g3} s; a sample time lies between {MinSampleTime:g3} s (one tick of a station's timestamps) and {MaxSampleTime:g3} s (the span of a timestamp)"));
         }
 
         if (!Enum.IsDefined(plant.TimeDomain))
@@ -605,6 +626,10 @@ public static class ModelValidator
             {
                 errors.Add(new($"{path}[{i}]", $"must be a text of at most {MaxLabelLength} characters (empty for none)"));
             }
+            else if (HasControlCharacter(units[i]))
+            {
+                errors.Add(new($"{path}[{i}]", ControlCharacterReason));
+            }
         }
     }
 
@@ -667,10 +692,33 @@ public static class ModelValidator
             {
                 errors.Add(new($"{path}[{i}]", $"must be a non-empty name of at most {MaxLabelLength} characters"));
             }
+            else if (HasControlCharacter(names[i]))
+            {
+                errors.Add(new($"{path}[{i}]", ControlCharacterReason));
+            }
             else if (!seen.Add(names[i]))
             {
                 errors.Add(new($"{path}[{i}]", $"'{names[i]}' is used twice"));
             }
         }
+    }
+
+    private const string ControlCharacterReason = "must not contain control characters (U+0000–U+001F, U+007F–U+009F): names and labels end up in CSV headers, chart text and logs";
+
+    /// <summary>
+    /// A control character (C0, DEL or C1) in a name or a label: they would break the CSV headers, the SVG charts and the
+    /// log lines the text is written into, and none of them is printable.
+    /// </summary>
+    private static bool HasControlCharacter(string text)
+    {
+        foreach (char c in text)
+        {
+            if (char.IsControl(c))
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 }

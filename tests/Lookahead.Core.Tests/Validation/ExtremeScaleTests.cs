@@ -59,11 +59,25 @@ public class ExtremeScaleTests
         Assert.Contains(ModelValidator.MaxMagnitude.ToString("g3", System.Globalization.CultureInfo.CurrentCulture), error.Reason, StringComparison.Ordinal);
     }
 
-    // A discrete plant's sample time labels the time axis only; its scale is no numeric hazard.
+    // A discrete plant's sample time is no numeric hazard in its plans, but stations count samples by it from 100 ns
+    // timestamps: it must lie between one tick and the span of a timestamp, for every plant.
     [Theory]
+    [InlineData(5e-324)]
     [InlineData(1e-300)]
+    [InlineData(9e-8)]
+    [InlineData(4e11)]
     [InlineData(1e300)]
-    public void ADiscretePlantAcceptsAnySampleTime(double sampleTime) =>
+    public void ADiscretePlantRefusesASampleTimeNoTimestampCanCount(double sampleTime)
+    {
+        var ex = Assert.Throws<ModelValidationException>(() => Bounded.Run(() => ModelCompiler.Compile(Model(Integrator, IntegratorInput, sampleTime, TimeDomain.Discrete))));
+        Assert.Contains(ex.Errors, e => e.Path == "plant.sampleTime");
+    }
+
+    [Theory]
+    [InlineData(1e-7)]
+    [InlineData(1e-3)]
+    [InlineData(3e11)]
+    public void ADiscretePlantAcceptsSampleTimesFromOneTickToTheSpanOfATimestamp(double sampleTime) =>
         Assert.Equal(sampleTime, Bounded.Run(() => ModelCompiler.Compile(Model(Integrator, IntegratorInput, sampleTime, TimeDomain.Discrete))).SampleTime);
 
     // A stiff but stable plant sampled slowly: ‖A‖·T = 1e6 is far inside the hold's range, and the fast mode has died out.

@@ -98,6 +98,24 @@ public class ModelValidatorTests
     public void RefusesRateLimitsThatForbidHoldingTheInput() =>
         AssertRefused(Valid() with { Limits = new LimitsSpec(InputRateMin: [0.1], InputRateMax: [0.5]) }, "limits.inputRateMin[0]");
 
+    // Control characters (C0, DEL, C1) would break the CSV headers, charts and log lines names and labels are written into.
+    [Theory]
+    [InlineData("\u0000")]
+    [InlineData("\t")]
+    [InlineData("\u001b")]
+    [InlineData("\u007f")]
+    [InlineData("\u009b")]
+    public void RefusesControlCharactersInTheNameLabelsAndUnits(string control)
+    {
+        AssertRefused(Valid() with { Name = "tank" + control }, "name", "control characters");
+        AssertRefused(Valid() with { Labels = new LabelsSpec(States: ["level", control + "rate"]) }, "labels.states[1]", "control characters");
+        AssertRefused(Valid() with { Labels = new LabelsSpec(Units: new UnitsSpec(Outputs: ["m", "m/s" + control])) }, "labels.units.outputs[1]", "control characters");
+    }
+
+    [Fact]
+    public void AcceptsPrintableUnicodeInNamesAndUnits() =>
+        Assert.Empty(ModelValidator.Validate(Valid() with { Name = "Kühlhaus – Zone A", Labels = new LabelsSpec(States: ["höhe", "Δh"], Units: new UnitsSpec(States: ["m³", "°C"])) }));
+
     [Fact]
     public void RefusesDuplicateLabels() =>
         AssertRefused(Valid() with { Labels = new LabelsSpec(States: ["zone", "zone"]) }, "labels.states[1]");
