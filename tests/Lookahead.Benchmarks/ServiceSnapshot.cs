@@ -13,7 +13,7 @@ namespace Lookahead.Benchmarks;
 /// <param name="MachineBusy">CPU time of every process on the machine (Linux /proc/stat); null elsewhere.</param>
 /// <param name="RouteSeconds">Sum of the server-side durations of 200 answers at the route measured.</param>
 /// <param name="RouteCount">Count of those answers.</param>
-/// <param name="SolveSeconds">Sum of plan solve times (the "plan" label: /plan, alias plans and station steps).</param>
+/// <param name="SolveSeconds">Sum of plan solve times (label "station" for station steps, "plan" for /plan and alias plans).</param>
 /// <param name="SolveCount">Count of those plans.</param>
 public sealed record ServiceSnapshot(
     TimeSpan? ServiceCpu,
@@ -38,14 +38,17 @@ public sealed record ServiceSnapshot(
         var generatorCpu = self.TotalProcessorTime;
         string text = await client.GetStringAsync(new Uri("/metrics", UriKind.Relative));
         string route = $"code=\"200\",method=\"POST\",controller=\"\",action=\"\",endpoint=\"{routeTemplate}\"";
+
+        // Station steps count their plans under their own endpoint label.
+        string plans = routeTemplate.Contains("/stations/", StringComparison.Ordinal) ? "station" : "plan";
         return new ServiceSnapshot(
             serviceCpu,
             generatorCpu,
             ReadMachineBusy(),
             Value(text, $"http_request_duration_seconds_sum{{{route}}}"),
             Value(text, $"http_request_duration_seconds_count{{{route}}}"),
-            Value(text, "lookahead_plan_duration_seconds_sum{endpoint=\"plan\"}"),
-            Value(text, "lookahead_plan_duration_seconds_count{endpoint=\"plan\"}"));
+            Value(text, $"lookahead_plan_duration_seconds_sum{{endpoint=\"{plans}\"}}"),
+            Value(text, $"lookahead_plan_duration_seconds_count{{endpoint=\"{plans}\"}}"));
     }
 
     /// <summary>
