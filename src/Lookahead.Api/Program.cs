@@ -1,4 +1,5 @@
 using Lookahead.Api;
+using Lookahead.Api.Access;
 using Lookahead.Api.Aliases;
 using Lookahead.Api.Estimation;
 using Lookahead.Api.Hosting;
@@ -14,6 +15,7 @@ var builder = WebApplication.CreateBuilder(args);
 builder.AddLookaheadConfiguration(args);
 builder.AddLookaheadLogging();
 builder.Services.AddLookaheadHosting();
+builder.Services.AddAccess();
 builder.Services.AddPlans().AddReplay().AddStations().AddJsonContext(ApiJsonContext.Default);
 
 var app = builder.Build();
@@ -26,6 +28,7 @@ app.MapEstimationApi();
 app.MapAliasesApi();
 app.MapStationsApi();
 app.MapHostingEndpoints();
+AnonymousBindingGuard.Watch(app);
 app.Run();
 
 /// <summary>Entry point; public and partial so tests can host it with WebApplicationFactory.</summary>

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Charts;
 using Lookahead.Api.Http;
@@ -16,6 +17,7 @@ public static class AliasesApi
         var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPut("/{name}", PutAsync)
+            .RequireScope(AccessScopes.ModelsWrite)
             .WithName("SetAlias")
             .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
             .Accepts<AliasRequest>("application/json")
@@ -23,16 +25,19 @@ public static class AliasesApi
             .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
 
         group.MapGet("/{name}", GetAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("GetAlias")
             .WithSummary("An alias's current model and its history with timestamps")
             .ProducesLookupProblems();
 
         group.MapDelete("/{name}", DeleteAsync)
+            .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteAlias")
             .WithSummary("Delete an alias and its history (the model stays)")
             .ProducesLookupProblems();
 
         group.MapPost("/{name}/plan", PlanAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForAlias")
             .WithSummary("Plan with the model the alias points at now; the answer names that model")
             .Accepts<PlanRequestDto>("application/json")

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Http;
 using Lookahead.Api.Models;
 using Lookahead.Core.Estimation;
@@ -15,6 +16,7 @@ public static class EstimationApi
         var group = routes.MapGroup("/v1/models").WithTags("Estimation").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/estimate", EstimateAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("EstimateState")
             .WithSummary("One estimator sample: propagate the last estimate with the applied input, correct it with the measurement")
             .Accepts<EstimateRequestDto>("application/json")

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Microsoft.AspNetCore.Diagnostics.HealthChecks;
 using Prometheus;
 using Serilog;
@@ -36,8 +37,9 @@ public static class ApplicationBuilderExtensions
         var registry = app.Services.GetRequiredService<CollectorRegistry>();
         app.UseHttpMetrics(o => o.SetMetricFactory(Metrics.WithCustomRegistry(registry)));
         app.UseRouting();
+        app.UseAuthentication();
+        app.UseAuthorization();
         app.UseRateLimiter();
-        app.UseSwagger();
         app.UseSwaggerUI(o => o.SwaggerEndpoint($"/swagger/{OpenApiExtensions.DocumentName}/swagger.json", "Lookahead v1"));
         return app;
     }
@@ -54,7 +56,9 @@ public static class ApplicationBuilderExtensions
             .WithMetadata(reads).WithName("Live").WithSummary("The process is up (checks nothing else)").WithTags("Health");
         app.MapHealthChecks("/health/ready", new HealthCheckOptions { Predicate = check => check.Tags.Contains("ready") })
             .WithMetadata(reads).WithName("Ready").WithSummary("The store answers").WithTags("Health");
+        app.MapSwagger().RequireScope(AccessScopes.Admin);
         app.MapMetrics("/metrics", app.Services.GetRequiredService<CollectorRegistry>())
+            .RequireScope(AccessScopes.Admin)
             .WithMetadata(reads).WithName("Metrics").WithSummary("Prometheus metrics").WithTags("Health");
         return app;
     }

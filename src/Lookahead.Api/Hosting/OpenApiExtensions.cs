@@ -20,6 +20,18 @@ public static class OpenApiExtensions
                 Description = "Optimal control moves for linear plants: register a plant-and-cost model once, then post measured states for the optimal input sequence and predicted trajectory.",
             });
             o.SupportNonNullableReferenceTypes();
+
+            // Keys go as "Authorization: Bearer <key>" (or X-Api-Key); without configured keys the service is open on loopback.
+            o.AddSecurityDefinition(Access.ApiKeyAuthentication.SchemeName, new OpenApiSecurityScheme
+            {
+                Type = SecuritySchemeType.Http,
+                Scheme = "bearer",
+                Description = "An API key, configured on the service by its SHA-256; scopes models:write, plans:run, stations:step, admin.",
+            });
+            o.AddSecurityRequirement(document => new OpenApiSecurityRequirement
+            {
+                [new OpenApiSecuritySchemeReference(Access.ApiKeyAuthentication.SchemeName, document)] = [],
+            });
             o.OperationFilter<SvgResponseFilter>();
         });
         return services;

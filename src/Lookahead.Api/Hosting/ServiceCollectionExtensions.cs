@@ -1,4 +1,5 @@
 using System.Threading.RateLimiting;
+using Lookahead.Api.Access;
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
 using Lookahead.Api.Storage;
@@ -156,7 +157,8 @@ public static class ServiceCollectionExtensions
             o.AddPolicy(RateLimitPolicy.Name, context =>
             {
                 var settings = context.RequestServices.GetRequiredService<IOptions<RateLimitingOptions>>().Value;
-                string client = context.Connection.RemoteIpAddress?.ToString() ?? "unknown";
+                // Per key when the request carries one (many stations behind one proxy share an address), else per address.
+                string client = AccessApi.KeyId(context) is { } key ? "key:" + key : context.Connection.RemoteIpAddress?.ToString() ?? "unknown";
                 return RateLimitPartition.GetFixedWindowLimiter(client, _ => new FixedWindowRateLimiterOptions
                 {
                     PermitLimit = settings.PermitLimit,

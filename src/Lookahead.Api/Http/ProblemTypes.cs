@@ -14,6 +14,8 @@ public static class ProblemTypes
     public const string UnsupportedMediaType = Prefix + "unsupported-media-type";
     public const string TooManyRequests = Prefix + "too-many-requests";
     public const string Unavailable = Prefix + "unavailable";
+    public const string Unauthenticated = Prefix + "unauthenticated";
+    public const string Forbidden = Prefix + "forbidden";
     public const string Internal = Prefix + "internal";
     public const string Http = Prefix + "http";
 }

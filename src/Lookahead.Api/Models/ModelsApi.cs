@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
 using Lookahead.Api.Storage;
@@ -17,28 +18,33 @@ public static class ModelsApi
         var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("", RegisterAsync)
+            .RequireScope(AccessScopes.ModelsWrite)
             .WithName("RegisterModel")
             .WithSummary("Register a plant-and-cost model; its id is the SHA-256 of its canonical form")
             .Accepts<ModelDocumentDto>("application/json")
             .ProducesBodyProblems();
 
         group.MapGet("", ListAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("ListModels")
             .WithSummary("List registered models in registration order, a page at a time")
             .ProducesProblem(StatusCodes.Status400BadRequest);
 
         group.MapGet("/{id}", GetAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModel")
             .WithSummary("A registered model's document, dimensions and diagnostics")
             .ProducesLookupProblems();
 
         group.MapDelete("/{id}", DeleteAsync)
+            .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteModel")
             .WithSummary("Delete a model (refused while an alias points at it)")
             .ProducesLookupProblems()
             .ProducesProblem(StatusCodes.Status409Conflict);
 
         group.MapGet("/{id}/gain", GetGainAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModelGain")
             .WithSummary("The receding-horizon gain K (u0 = −K x0), closed-loop eigenvalues and spectral radius")
             .ProducesLookupProblems();

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using System.Collections.Concurrent;
 using System.Text.Json;
 using Lookahead.Api.Http;
@@ -19,6 +20,7 @@ public static class PlanEchoApi
     {
         var group = routes.MapGroup("/v1").WithTags("Diagnostics").RequireRateLimiting(RateLimitPolicy.Name).ExcludeFromDescription();
         group.MapPost("/echo-plan-shaped/{id}", EchoAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("EchoPlanShaped")
             .WithSummary("Load-test baseline: a precomputed plan-sized answer");
         return group;

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Charts;
 using Lookahead.Api.Http;
 using Lookahead.Api.Models;
@@ -33,6 +34,7 @@ public static class PlansApi
         var group = app.MapGroup("/v1/models").WithTags("Plans").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/plan", PlanAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForModel")
             .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
             .Accepts<PlanRequestDto>("application/json")

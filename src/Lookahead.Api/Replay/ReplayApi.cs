@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using System.IO.Pipelines;
 using Lookahead.Api.Http;
 using Lookahead.Api.Models;
@@ -30,6 +31,7 @@ public static class ReplayApi
         var group = routes.MapGroup("/v1/models").WithTags("Replay").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/plans", ReplayAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("ReplayPlans")
             .WithSummary("Plan every state of a JSON, NDJSON or CSV upload; results stream back in input order")
             .Accepts<ReplayRequest>(JsonContentType, NdjsonContentType, CsvContentType)

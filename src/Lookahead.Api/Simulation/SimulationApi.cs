@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Charts;
 using Lookahead.Api.Http;
 using Lookahead.Api.Models;
@@ -15,6 +16,7 @@ public static class SimulationApi
         var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/simulate", SimulateAsync)
+            .RequireScope(AccessScopes.PlansRun)
             .WithName("SimulateModel")
             .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
             .Accepts<SimulationRequestDto>("application/json")

@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using System.Security.Cryptography;
 using System.Text.Json;
 using System.Text.Json.Serialization.Metadata;
@@ -34,7 +35,8 @@ public static class StationsApi
 
     public static RouteGroupBuilder MapStationsApi(this IEndpointRouteBuilder routes)
     {
-        var group = routes.MapGroup("/v1/stations").WithTags("Stations").RequireRateLimiting(RateLimitPolicy.Name);
+        var group = routes.MapGroup("/v1/stations").WithTags("Stations").RequireRateLimiting(RateLimitPolicy.Name)
+            .RequireScope(AccessScopes.StationsStep);
 
         group.MapPut("/{name}", PutAsync)
             .WithName("PutStation")

@@ -36,7 +36,8 @@ public sealed class ServiceProcess : IDisposable
 
     /// <summary>Starts the service on the store and returns once /health/ready answers (the store is reachable).</summary>
     /// <param name="settings">Further settings (configuration keys such as "Replay:BatchSize"), passed as environment variables.</param>
-    public static async Task<ServiceProcess> StartAsync(ServiceStore store, IReadOnlyDictionary<string, string>? settings = null)
+    /// <param name="listenHost">The host in --urls (loopback by default; 0.0.0.0 listens on every address, still reached on loopback).</param>
+    public static async Task<ServiceProcess> StartAsync(ServiceStore store, IReadOnlyDictionary<string, string>? settings = null, string listenHost = "127.0.0.1")
     {
         if (!File.Exists(Repository.ApiAssembly))
         {
@@ -53,7 +54,7 @@ public sealed class ServiceProcess : IDisposable
         };
         start.ArgumentList.Add(Repository.ApiAssembly);
         start.ArgumentList.Add("--urls");
-        start.ArgumentList.Add(address.ToString().TrimEnd('/'));
+        start.ArgumentList.Add($"http://{listenHost}:{address.Port}");
         foreach (var (key, value) in store.Settings.Concat(settings ?? new Dictionary<string, string>()))
         {
             start.Environment[EnvironmentName(key)] = value;
