@@ -149,6 +149,40 @@ public class AccessTests
         Assert.Equal(HttpStatusCode.Unauthorized, (await anonymous.GetAsync("/v1/models")).StatusCode);
     }
 
+    [Fact]
+    public async Task Forwarded_addresses_count_only_from_configured_proxies()
+    {
+        await using var store = ServiceStore.Sqlite();
+        var limits = new Dictionary<string, string> { ["RateLimiting:PermitLimit"] = "2", ["RateLimiting:WindowSeconds"] = "60" };
+
+        // Behind the configured proxy (loopback here) each forwarded client has its own allowance.
+        using (var behind = await ServiceProcess.StartAsync(store, new Dictionary<string, string>(limits) { ["Proxies:Addresses:0"] = "127.0.0.1" }))
+        {
+            using var client = behind.CreateClient();
+            Assert.Equal(new[] { 200, 200, 429 }, await StatusesAsync(client, "10.0.0.1", 3));
+            Assert.Equal(new[] { 200 }, await StatusesAsync(client, "10.0.0.2", 1));
+        }
+
+        // From anyone else the header is ignored: a client cannot pick the address it is counted against.
+        using var direct = await ServiceProcess.StartAsync(store, limits);
+        using var plain = direct.CreateClient();
+        Assert.Equal(new[] { 200, 200 }, await StatusesAsync(plain, "10.0.0.1", 2));
+        Assert.Equal(new[] { 429 }, await StatusesAsync(plain, "10.0.0.2", 1));
+    }
+
+    private static async Task<int[]> StatusesAsync(HttpClient client, string forwardedFor, int count)
+    {
+        var statuses = new int[count];
+        for (int i = 0; i < count; i++)
+        {
+            using var request = new HttpRequestMessage(HttpMethod.Get, "/v1/models");
+            request.Headers.Add("X-Forwarded-For", forwardedFor);
+            statuses[i] = (int)(await client.SendAsync(request)).StatusCode;
+        }
+
+        return statuses;
+    }
+
     private static HttpClient Client(WebApplicationFactory<Program> factory, string key)
     {
         var client = factory.CreateClient();

@@ -11,6 +11,12 @@ public static class ApplicationBuilderExtensions
 {
     public static WebApplication UseLookaheadPipeline(this WebApplication app)
     {
+        // Only with configured proxies: the middleware with an empty list would believe every sender.
+        if (app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<ProxyOptions>>().Value.Addresses.Count > 0)
+        {
+            app.UseForwardedHeaders();
+        }
+
         app.UseTraceIdHeader();
         app.UseExceptionHandler();
         app.UseStatusCodePages();

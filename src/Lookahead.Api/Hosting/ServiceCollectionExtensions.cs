@@ -4,6 +4,7 @@ using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
 using Lookahead.Api.Storage;
 using Microsoft.AspNetCore.Http.Json;
+using Microsoft.AspNetCore.HttpOverrides;
 using Microsoft.AspNetCore.Server.Kestrel.Core;
 using Microsoft.Extensions.Options;
 using OpenTelemetry;
@@ -60,6 +61,19 @@ public static class ServiceCollectionExtensions
             .ValidateOnStart();
         services.AddOptions<RequestLimitsOptions>().BindConfiguration(RequestLimitsOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddOptions<RateLimitingOptions>().BindConfiguration(RateLimitingOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<ProxyOptions>().BindConfiguration(ProxyOptions.Section)
+            .Validate(o => o.Addresses.All(a => System.Net.IPAddress.TryParse(a, out _)), "Proxies:Addresses must be IP addresses")
+            .ValidateOnStart();
+        services.AddOptions<ForwardedHeadersOptions>().Configure<IOptions<ProxyOptions>>((forwarded, proxies) =>
+        {
+            forwarded.ForwardedHeaders = ForwardedHeaders.XForwardedFor | ForwardedHeaders.XForwardedProto;
+            forwarded.KnownProxies.Clear();
+            forwarded.KnownIPNetworks.Clear();
+            foreach (var address in proxies.Value.Addresses)
+            {
+                forwarded.KnownProxies.Add(System.Net.IPAddress.Parse(address));
+            }
+        });
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateDataAnnotations()
             .Validate(o => AliasName.IsWellFormed(o.Alias), $"Demo:Alias must match {AliasName.Pattern}")
             .ValidateOnStart();
