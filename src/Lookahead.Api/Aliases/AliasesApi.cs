@@ -48,7 +48,7 @@ public static class AliasesApi
     }
 
     public static async Task<Results<Created<AliasResponse>, Ok<AliasResponse>, ProblemHttpResult>> PutAsync(
-        string name, HttpRequest request, RequestBodyReader reader, IModelStore store, TimeProvider time, CancellationToken cancellationToken)
+        string name, HttpRequest request, RequestBodyReader reader, IModelStore store, AliasResolver resolver, TimeProvider time, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
@@ -73,6 +73,7 @@ public static class AliasesApi
         }
 
         var outcome = await store.SetAliasAsync(name, modelId, time.GetUtcNow(), cancellationToken);
+        resolver.Forget(name);
         return outcome.Status switch
         {
             AliasStatus.ModelNotFound => ModelProblems.ModelNotFound(modelId, "modelId"),
@@ -92,18 +93,20 @@ public static class AliasesApi
         return alias is null ? AliasProblems.AliasNotFound(name) : TypedResults.Ok(ToResponse(alias));
     }
 
-    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IModelStore store, CancellationToken cancellationToken)
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IModelStore store, AliasResolver resolver, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
             return AliasProblems.MalformedAlias(name);
         }
 
-        return await store.DeleteAliasAsync(name, cancellationToken) ? TypedResults.NoContent() : AliasProblems.AliasNotFound(name);
+        bool deleted = await store.DeleteAliasAsync(name, cancellationToken);
+        resolver.Forget(name);
+        return deleted ? TypedResults.NoContent() : AliasProblems.AliasNotFound(name);
     }
 
     public static async Task<Results<Ok<PlanResponse>, ContentHttpResult, ProblemHttpResult>> PlanAsync(
-        string name, IModelStore store, [AsParameters] PlanServices services, string? format = null)
+        string name, AliasResolver resolver, [AsParameters] PlanServices services, string? format = null)
     {
         if (!AliasName.IsWellFormed(name))
         {
@@ -115,21 +118,21 @@ public static class AliasesApi
             return formatProblem!;
         }
 
-        // Resolved on every request so a re-pointed alias takes effect at once, on every instance.
-        var alias = await store.GetAliasAsync(name, services.CancellationToken);
-        if (alias is null)
+        // Re-pointed here: effective at once; on another instance: within Cache:AliasSeconds.
+        string? modelId = await resolver.ResolveAsync(name, services.CancellationToken);
+        if (modelId is null)
         {
             return AliasProblems.AliasNotFound(name);
         }
 
-        var model = await services.Catalog.GetCompiledAsync(alias.ModelId);
+        var model = await services.Catalog.GetCompiledAsync(modelId);
         if (model is null)
         {
-            return ModelProblems.ModelNotFound(alias.ModelId);
+            return ModelProblems.ModelNotFound(modelId);
         }
 
         services.Log.Set("Alias", name);
-        return await PlansApi.AnswerAsync(alias.ModelId, name, model, responseFormat, services);
+        return await PlansApi.AnswerAsync(modelId, name, model, responseFormat, services);
     }
 
     private static AliasResponse ToResponse(AliasRecord alias) =>

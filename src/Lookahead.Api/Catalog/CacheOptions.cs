@@ -9,4 +9,12 @@ public sealed class CacheOptions
 
     [Range(1024, long.MaxValue)]
     public long SizeLimitBytes { get; set; } = 512L * 1024 * 1024;
+
+    /// <summary>
+    /// Seconds a plan by alias uses the alias's last resolution without reading the store (0: read on every plan).
+    /// Bounds how late a re-pointing done on another instance takes effect here; during a store outage the last
+    /// resolution is used regardless.
+    /// </summary>
+    [Range(0, 3600)]
+    public int AliasSeconds { get; set; } = 5;
 }

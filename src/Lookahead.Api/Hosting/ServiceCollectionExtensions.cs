@@ -49,6 +49,7 @@ public static class ServiceCollectionExtensions
         });
         services.AddSingleton<RequestBodyReader>();
         services.AddCatalog();
+        services.AddSingleton<Aliases.AliasResolver>();
         services.AddHostedService<DemoModelSeeder>();
         services.AddHealthChecks().AddCheck<StoreHealthCheck>("store", tags: ["ready"]);
         return services;
@@ -102,18 +103,22 @@ public static class ServiceCollectionExtensions
 
     private static void AddLookaheadStore(this IServiceCollection services)
     {
+        // Behind the fault boundary: whatever the provider, an unreachable or unwritable store answers 503, never 500.
         services.AddSingleton<IModelStore>(sp =>
         {
             var options = sp.GetRequiredService<IOptions<StoreOptions>>().Value;
             if (options.Provider == "postgres")
             {
-                return new PostgresModelStore(options.PostgresConnectionString!, options.PostgresSchema);
+                return new StoreFaultBoundary(new PostgresModelStore(options.PostgresConnectionString!, options.PostgresSchema));
             }
 
             var environment = sp.GetRequiredService<IHostEnvironment>();
             var path = Path.IsPathRooted(options.SqlitePath) ? options.SqlitePath : Path.Combine(environment.ContentRootPath, options.SqlitePath);
-            return new SqliteModelStore(path);
+            return new StoreFaultBoundary(new SqliteModelStore(path));
         });
+
+        // Before any other hosted service touches the store.
+        services.AddHostedService<StoreStartupCheck>();
     }
 
     private static void AddLookaheadProblems(this IServiceCollection services)

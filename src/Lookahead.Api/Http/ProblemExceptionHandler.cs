@@ -1,4 +1,5 @@
 using System.Text.Json;
+using Lookahead.Api.Storage;
 using Lookahead.Core.Validation;
 using Microsoft.AspNetCore.Diagnostics;
 using Microsoft.AspNetCore.Mvc;
@@ -27,11 +28,17 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
                 ApiProblems.Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", "A query or route value has the wrong form.", [new ProblemError(binding.Groups["name"].Value, $"'{binding.Groups["value"].Value}' is not {Expected(binding.Groups["type"].Value)}")]),
             BadHttpRequestException bad => ApiProblems.Create(bad.StatusCode, ProblemTypes.Http, "Bad request", "The request could not be read."),
             JsonException json => ApiProblems.MalformedJsonDetails(JsonErrorDescriber.Describe(json, limits.Value.MaxJsonDepth)),
+            StoreUnavailableException unavailable => ApiProblems.Create(StatusCodes.Status503ServiceUnavailable, ProblemTypes.Unavailable, "Store unavailable", unavailable.Message),
             ModelValidationException invalid => ApiProblems.Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", "The request has invalid fields; see errors.", invalid.Errors.Select(ApiProblems.ToProblemError)),
             _ => ApiProblems.Create(StatusCodes.Status500InternalServerError, ProblemTypes.Internal, "Unexpected error", "The service could not complete the request; the incident is logged with its trace id."),
         };
 
-        if (problem.Status >= 500)
+        if (exception is StoreUnavailableException)
+        {
+            // Expected while the store is down or its file is gone: a warning with the cause, not an incident per request.
+            logger.LogWarning(exception.InnerException ?? exception, "Store unavailable on {Method} {Path}", httpContext.Request.Method, httpContext.Request.Path);
+        }
+        else if (problem.Status >= 500)
         {
             logger.LogError(exception, "Unhandled exception on {Method} {Path}", httpContext.Request.Method, httpContext.Request.Path);
         }
@@ -42,6 +49,11 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
         }
 
         httpContext.Response.StatusCode = problem.Status ?? 500;
+        if (exception is StoreUnavailableException)
+        {
+            httpContext.Response.Headers.RetryAfter = StoreUnavailableException.RetryAfterSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        }
+
         return await problems.TryWriteAsync(new ProblemDetailsContext { HttpContext = httpContext, ProblemDetails = problem, Exception = exception });
     }
 

@@ -221,6 +221,9 @@ public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
         await command.ExecuteScalarAsync(cancellationToken);
     }
 
+    /// <summary>Closes the idle pooled connections, so none that died with a server restart is handed out again.</summary>
+    public void ClearPool() => dataSource.Clear();
+
     public async ValueTask DisposeAsync()
     {
         initialisation.Dispose();

@@ -10,10 +10,12 @@ namespace Lookahead.Api.Storage;
 public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncDisposable
 {
     private readonly string connectionString;
+    private readonly string existingFileConnectionString;
     private readonly MigrationSequence migrations;
     private readonly SemaphoreSlim initialisation = new(1, 1);
     private volatile bool initialised;
     private SqliteStepWriter? stepWriter;
+    private SqliteFileAnchor? anchor;
 
     public SqliteModelStore(string path)
         : this(path, SqliteMigrations.Sequence)
@@ -32,6 +34,9 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
             Pooling = true,
             DefaultTimeout = 30,
         }.ToString();
+
+        // After the first open the file must already exist: a deleted file is an error, not a new empty store.
+        existingFileConnectionString = new SqliteConnectionStringBuilder(connectionString) { Mode = SqliteOpenMode.ReadWrite }.ToString();
     }
 
     public string FilePath { get; }
@@ -176,7 +181,7 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
     }
 
     /// <summary>Station steps go through one writer, started with the first step.</summary>
-    private SqliteStepWriter StepWriter => LazyInitializer.EnsureInitialized(ref stepWriter, () => new SqliteStepWriter(OpenAsync));
+    private SqliteStepWriter StepWriter => LazyInitializer.EnsureInitialized(ref stepWriter, () => new SqliteStepWriter(OpenAsync, EnsureFileInPlace));
 
     public void Dispose() => DisposeAsync().AsTask().GetAwaiter().GetResult();
 
@@ -188,7 +193,41 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
             await stepWriter.DisposeAsync();
         }
 
+        anchor?.Dispose();
         initialisation.Dispose();
+    }
+
+    /// <summary>
+    /// Throws unless the file (or, before it exists, its folder) can be written: the service refuses to start on a
+    /// read-only store rather than acknowledge nothing. The probe really writes, so it answers for the user the
+    /// service runs as, whatever the permission bits suggest (root ignores them, an immutable file does not).
+    /// </summary>
+    public void EnsureWritable()
+    {
+        var folder = Path.GetDirectoryName(FilePath);
+        try
+        {
+            if (File.Exists(FilePath))
+            {
+                using var file = new FileStream(FilePath, FileMode.Open, FileAccess.ReadWrite, FileShare.ReadWrite | FileShare.Delete);
+            }
+
+            if (!string.IsNullOrEmpty(folder) && Directory.Exists(folder))
+            {
+                // SQLite creates its -wal and -shm files beside the database, so the folder must take new files too.
+                var probe = Path.Combine(folder, $".lookahead-write-probe-{Guid.NewGuid():N}");
+                using (new FileStream(probe, FileMode.CreateNew, FileAccess.Write, FileShare.None, 1, FileOptions.DeleteOnClose))
+                {
+                }
+            }
+        }
+        catch (Exception ex) when (ex is UnauthorizedAccessException or IOException)
+        {
+            throw new InvalidOperationException(
+                $"The SQLite store {FilePath} is read-only ({ex.Message}). The service writes registrations, aliases and station state there "
+                + "and will not start on a store it cannot write: make the file and its folder writable for the service's user, or set Store:SqlitePath to a writable place.",
+                ex);
+        }
     }
 
     public async Task PingAsync(CancellationToken cancellationToken)
@@ -244,7 +283,8 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
             await InitialiseAsync(cancellationToken);
         }
 
-        var connection = new SqliteConnection(connectionString);
+        EnsureFileInPlace();
+        var connection = new SqliteConnection(existingFileConnectionString);
         try
         {
             await connection.OpenAsync(cancellationToken);
@@ -259,6 +299,16 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         {
             await connection.DisposeAsync();
             throw;
+        }
+    }
+
+    /// <summary>Refuses every operation once the file the store opened is no longer at its path (see <see cref="SqliteFileAnchor"/>).</summary>
+    private void EnsureFileInPlace()
+    {
+        if (anchor is { } a && !a.InPlace())
+        {
+            throw new StoreUnavailableException(
+                "The store's database file was deleted or replaced while the service ran; nothing is read or written until the file is restored and the service restarted, so no write is acknowledged and then lost.");
         }
     }
 
@@ -289,6 +339,7 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
             }
 
             await SqliteSchemaMigrator.MigrateAsync(connection, migrations, $"The SQLite store {FilePath}", cancellationToken);
+            anchor = SqliteFileAnchor.Take(FilePath);
             initialised = true;
         }
         finally

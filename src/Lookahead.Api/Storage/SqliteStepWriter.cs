@@ -15,12 +15,16 @@ internal sealed class SqliteStepWriter : IAsyncDisposable
     public const int MaxGroup = 256;
 
     private readonly Func<CancellationToken, Task<SqliteConnection>> open;
+    private readonly Action ensureFileInPlace;
     private readonly Channel<Pending> queue = Channel.CreateUnbounded<Pending>(new UnboundedChannelOptions { SingleReader = true });
     private readonly Task writing;
 
-    public SqliteStepWriter(Func<CancellationToken, Task<SqliteConnection>> open)
+    /// <param name="open">Opens a configured connection to the store's file.</param>
+    /// <param name="ensureFileInPlace">Throws when the file was deleted or replaced: checked before every group, as the writer keeps its connection.</param>
+    public SqliteStepWriter(Func<CancellationToken, Task<SqliteConnection>> open, Action ensureFileInPlace)
     {
         this.open = open;
+        this.ensureFileInPlace = ensureFileInPlace;
         writing = Task.Run(WriteAsync);
     }
 
@@ -54,6 +58,7 @@ internal sealed class SqliteStepWriter : IAsyncDisposable
 
                 try
                 {
+                    ensureFileInPlace();
                     connection ??= await open(CancellationToken.None);
                     var written = Write(connection, group);
                     for (int i = 0; i < group.Count; i++)

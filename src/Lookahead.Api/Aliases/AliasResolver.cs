@@ -1,0 +1,53 @@
+using System.Collections.Concurrent;
+using Lookahead.Api.Catalog;
+using Lookahead.Api.Storage;
+using Microsoft.Extensions.Options;
+
+namespace Lookahead.Api.Aliases;
+
+/// <summary>
+/// Alias → model id for planning, remembered for <see cref="CacheOptions.AliasSeconds"/>: within that time a plan reads
+/// no store, so a re-pointed alias reaches other instances within it (this instance forgets at once, see
+/// <see cref="Forget"/>). When the store cannot be reached, the last resolution this instance saw keeps answering,
+/// however old, so plans by alias go on through an outage; the next successful read replaces it.
+/// </summary>
+public sealed class AliasResolver(IModelStore store, IOptions<CacheOptions> options, TimeProvider time, ILogger<AliasResolver> logger)
+{
+    private readonly ConcurrentDictionary<string, Resolution> resolutions = new(StringComparer.Ordinal);
+    private readonly TimeSpan lifetime = TimeSpan.FromSeconds(options.Value.AliasSeconds);
+
+    /// <summary>The model id the alias points at, or null when there is no such alias.</summary>
+    public async Task<string?> ResolveAsync(string name, CancellationToken cancellationToken)
+    {
+        var now = time.GetUtcNow();
+        resolutions.TryGetValue(name, out var known);
+        if (known is not null && now - known.ReadAt < lifetime)
+        {
+            return known.ModelId;
+        }
+
+        try
+        {
+            var alias = await store.GetAliasAsync(name, cancellationToken);
+            if (alias is null)
+            {
+                resolutions.TryRemove(name, out _);
+                return null;
+            }
+
+            // Only existing aliases are kept, so the table is bounded by the aliases there are.
+            resolutions[name] = new Resolution(alias.ModelId, now);
+            return alias.ModelId;
+        }
+        catch (StoreUnavailableException ex) when (known is not null)
+        {
+            logger.LogWarning(ex, "Store unavailable; alias {Alias} planned with its resolution from {ReadAt:o} ({ModelId})", name, known.ReadAt, known.ModelId);
+            return known.ModelId;
+        }
+    }
+
+    /// <summary>Drops what this instance knows of the alias, after it was set or deleted here.</summary>
+    public void Forget(string name) => resolutions.TryRemove(name, out _);
+
+    private sealed record Resolution(string ModelId, DateTimeOffset ReadAt);
+}
