@@ -65,7 +65,7 @@ public class DeploySettingsTests(DeployFixture deploy)
 
         Assert.Empty(surface.UnboundSectionTypes);
         Assert.Equal(
-            ["Cache", "Demo", "Diagnostics", "Limits", "Planning", "RateLimiting", "Replay", "Stations", "Store", "Telemetry"],
+            ["Cache", "Demo", "Diagnostics", "Limits", "Planning", "RateLimiting", "Replay", "Shutdown", "Stations", "Store", "Telemetry"],
             surface.Sections.Select(s => s.Section).Order(StringComparer.Ordinal));
     }
 
