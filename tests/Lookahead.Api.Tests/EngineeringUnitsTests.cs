@@ -86,7 +86,7 @@ public class EngineeringUnitsTests
         string engineering = await client.RegisterAsync(Engineering);
 
         var csv = await (await client.PostAsync($"/v1/models/{engineering}/plans", "timestamp,zone_a,zone_b\n1,-17.0,-18.5\n", "text/csv")).Content.ReadAsStringAsync();
-        var row = csv.Split('\n', StringSplitOptions.RemoveEmptyEntries)[1].Split(',');
+        var row = ReplayAnswer.CsvLines(csv)[1].Split(',');
         var plan = await (await client.PostJsonAsync($"/v1/models/{deviations}/plan", """{"state":[3.0,1.5]}""")).ReadJsonAsync();
         var firstMove = plan["inputs"]!.Matrix()[0];
         Assert.Equal(firstMove[0] + 60, double.Parse(row[1], CultureInfo.InvariantCulture), 1e-6);

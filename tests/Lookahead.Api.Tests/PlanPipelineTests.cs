@@ -113,7 +113,7 @@ public class PlanPipelineTests
     private static List<JsonNode> Results(JsonNode answer) => answer["results"]!.AsArray().Select(r => r!).ToList();
 
     private static async Task<List<JsonNode>> LinesAsync(Task<HttpResponseMessage> response) =>
-        (await (await response).Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonNode.Parse(l)!).ToList();
+        ReplayAnswer.NdjsonResults(await (await response).Content.ReadAsStringAsync());
 
     private static async Task<List<(double[] Move, double Cost)>> CsvAsync(HttpClient client, string id, (double[] State, double[]? Reference, double[]? Previous)[] requests)
     {
@@ -132,7 +132,7 @@ public class PlanPipelineTests
 
         var response = await client.PostAsync($"/v1/models/{id}/plans", csv.ToString(), "text/csv");
         Assert.Equal(HttpStatusCode.OK, response.StatusCode);
-        var lines = (await response.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries);
+        var lines = ReplayAnswer.CsvLines(await response.Content.ReadAsStringAsync());
         var header = lines[0].Split(',');
         int cost = System.Array.IndexOf(header, "cost");
         int status = System.Array.IndexOf(header, "status");

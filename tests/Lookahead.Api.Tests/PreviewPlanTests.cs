@@ -72,7 +72,7 @@ public class PreviewPlanTests
         var plan = await (await client.PostJsonAsync($"/v1/models/{id}/plan", request)).ReadJsonAsync();
         var replay = await client.PostAsync($"/v1/models/{id}/plans", request + "\n", "application/x-ndjson");
         Assert.Equal(HttpStatusCode.OK, replay.StatusCode);
-        var line = JsonNode.Parse((await replay.Content.ReadAsStringAsync()).Split('\n')[0])!;
+        var line = Assert.Single(ReplayAnswer.NdjsonResults(await replay.Content.ReadAsStringAsync()));
         Assert.Equal(plan["inputs"]!.Matrix()[0][0], line["firstMove"]![0]!.GetValue<double>(), 1e-12);
     }
 

@@ -123,7 +123,7 @@ public class ReplayEstimationTests
         var response = await client.PostAsync($"/v1/models/{id}/plans", csv.ToString(), "text/csv");
         var text = await response.Content.ReadAsStringAsync();
         Assert.True(response.StatusCode == HttpStatusCode.OK, text);
-        var lines = CsvText.Records(text);
+        var lines = ReplayAnswer.CsvRecords(text);
         Assert.Equal(["timestamp", "chiller_a", "chiller_b", "xhat_zone_a", "xhat_zone_b", "dhat1", "dhat2", "cost", "status", "message"], lines[0]);
         Assert.Equal(history.Count + 1, lines.Count);
 
@@ -179,7 +179,7 @@ public class ReplayEstimationTests
         var response = await client.PostAsync($"/v1/models/{id}/plans", body.ToString(), "application/x-ndjson");
         var text = await response.Content.ReadAsStringAsync();
         Assert.True(response.StatusCode == HttpStatusCode.OK, text);
-        var results = text.Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonNode.Parse(l)!).ToList();
+        var results = ReplayAnswer.NdjsonResults(text);
         Assert.Equal(history.Count, results.Count);
 
         var expected = Expected(history, new HashSet<int> { Broken });
@@ -265,7 +265,7 @@ public class ReplayEstimationTests
 
         // Row-level: a partly empty measurement and a short row are that row's errors; the next row is still answered.
         var rows = await client.PostAsync($"/v1/models/{id}/plans", "y1,y2,applied1,applied2\n-20,,60,60\n-20,-20,60\n-20,-20,60,60\n", "text/csv");
-        var lines = CsvText.Records(await rows.Content.ReadAsStringAsync());
+        var lines = ReplayAnswer.CsvRecords(await rows.Content.ReadAsStringAsync());
         Assert.Equal(HttpStatusCode.OK, rows.StatusCode);
         Assert.Equal("error", lines[1][^2]);
         Assert.Contains("measurement[1]: column 'y2' is empty", lines[1][^1], StringComparison.Ordinal);
@@ -287,7 +287,7 @@ public class ReplayEstimationTests
             -19.5,-20.3,-21,-19.5,55,65,5
             """;
 
-        var lines = CsvText.Records(await (await client.PostAsync($"/v1/models/{id}/plans", Csv, "text/csv")).Content.ReadAsStringAsync());
+        var lines = ReplayAnswer.CsvRecords(await (await client.PostAsync($"/v1/models/{id}/plans", Csv, "text/csv")).Content.ReadAsStringAsync());
         Assert.Equal(["chiller_a", "chiller_b", "cost", "status", "message"], lines[0]);
         string[] disturbances = ["[25]", "null", "[5]"];
         for (int i = 0; i < disturbances.Length; i++)
@@ -301,7 +301,7 @@ public class ReplayEstimationTests
 
         // JSON rows take "disturbance" through the shared plan parser.
         var ndjson = await client.PostAsync($"/v1/models/{id}/plans", "{\"state\":[-19.5,-20.3],\"reference\":[-21,-19.5],\"previousInput\":[55,65],\"disturbance\":[25]}\n", "application/x-ndjson");
-        var row = JsonNode.Parse((await ndjson.Content.ReadAsStringAsync()).Trim())!;
+        var row = Assert.Single(ReplayAnswer.NdjsonResults(await ndjson.Content.ReadAsStringAsync()));
         AssertClose([D(lines[1][0]), D(lines[1][1])], row["firstMove"]!.Doubles(), 1e-9, "ndjson");
     }
 
@@ -311,7 +311,7 @@ public class ReplayEstimationTests
         var (client, id, factory) = await StartAsync(TestModels.TwoTanks);
         await using var _ = factory;
 
-        var lines = CsvText.Records(await (await client.PostAsync($"/v1/models/{id}/plans", "level_1,level_2,v1\n0.5,-0.2,7\n", "text/csv")).Content.ReadAsStringAsync());
+        var lines = ReplayAnswer.CsvRecords(await (await client.PostAsync($"/v1/models/{id}/plans", "level_1,level_2,v1\n0.5,-0.2,7\n", "text/csv")).Content.ReadAsStringAsync());
 
         Assert.Equal(["v1", "valve_1", "valve_2", "cost", "status", "message"], lines[0]);
         Assert.Equal("7", lines[1][0]);

@@ -33,7 +33,7 @@ public class ReplayTests
         }
 
         var response = await client.PostAsync($"/v1/models/{id}/plans", lines.ToString(), "application/x-ndjson");
-        var results = (await response.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonNode.Parse(l)!).ToList();
+        var results = ReplayAnswer.NdjsonResults(await response.Content.ReadAsStringAsync());
 
         Assert.Equal(HttpStatusCode.OK, response.StatusCode);
         Assert.Equal("application/x-ndjson", response.Content.Headers.ContentType?.MediaType);
@@ -52,7 +52,7 @@ public class ReplayTests
         await using var _ = factory;
 
         var response = await client.PostAsync($"/v1/models/{id}/plans?detail=full", "{\"state\":[1,0]}\r\n\n{not json\n{\"state\":[0,1]}", "application/x-ndjson");
-        var results = (await response.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonNode.Parse(l)!).ToList();
+        var results = ReplayAnswer.NdjsonResults(await response.Content.ReadAsStringAsync());
 
         Assert.Equal([1L, 3L, 4L], results.Select(r => r["row"]!.GetValue<long>()));
         Assert.Equal("error", results[1]["status"]!.GetValue<string>());
@@ -133,7 +133,7 @@ public class ReplayTests
             """;
 
         var response = await client.PostAsync($"/v1/models/{id}/plans", Csv, "text/csv");
-        var lines = (await response.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries);
+        var lines = ReplayAnswer.CsvLines(await response.Content.ReadAsStringAsync());
 
         Assert.Equal(HttpStatusCode.OK, response.StatusCode);
         Assert.Equal("text/csv", response.Content.Headers.ContentType?.MediaType);

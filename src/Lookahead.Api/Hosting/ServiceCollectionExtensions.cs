@@ -79,6 +79,10 @@ public static class ServiceCollectionExtensions
             .Validate(o => AliasName.IsWellFormed(o.Alias), $"Demo:Alias must match {AliasName.Pattern}")
             .ValidateOnStart();
 
+        services.AddOptions<ShutdownOptions>().BindConfiguration(ShutdownOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<HostOptions>().Configure<IOptions<ShutdownOptions>>((host, shutdown) =>
+            host.ShutdownTimeout = TimeSpan.FromSeconds(shutdown.Value.GraceSeconds));
+
         // Kestrel enforces the ordinary body limit itself; replay raises it per request.
         services.AddOptions<KestrelServerOptions>().Configure<IOptions<RequestLimitsOptions>>((kestrel, limits) =>
         {

@@ -112,7 +112,32 @@ internal sealed class CsvSink : IReplaySink, IAsyncDisposable
         await CopyOutAsync(cancellationToken);
     }
 
-    public ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken) => ValueTask.CompletedTask;
+    /// <summary>
+    /// The last record is the summary: <c>#summary,rows=…,failedRows=…,complete=true|false</c>, padded with empty
+    /// fields to the header's width so that readers which insist on one width still read it (every header has at
+    /// least four columns: a move, cost, status, message). A reader told that '#' starts a comment skips it.
+    /// </summary>
+    public async ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken)
+    {
+        string[] fields =
+        [
+            SummaryMarker,
+            FormattableString.Invariant($"rows={summary.Rows}"),
+            FormattableString.Invariant($"failedRows={summary.FailedRows}"),
+            summary.Complete ? "complete=true" : "complete=false",
+        ];
+        int width = layout.PassThroughNames.Length + layout.MoveNames.Length + layout.EstimateNames.Length + 3;
+        for (int i = 0; i < Math.Max(width, fields.Length); i++)
+        {
+            csv.WriteField(i < fields.Length ? fields[i] : "");
+        }
+
+        csv.EndRecord();
+        await CopyOutAsync(cancellationToken);
+    }
+
+    /// <summary>First field of the summary record, always the last record of the answer.</summary>
+    public const string SummaryMarker = "#summary";
 
     public async ValueTask DisposeAsync()
     {

@@ -41,8 +41,17 @@ internal interface IReplaySink
     ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken);
 }
 
-/// <summary>Totals written at the end where the format has room for them.</summary>
-internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<WarningDto> Warnings);
+/// <summary>
+/// Totals every replay ends with, so that no client mistakes a stream cut short for a whole one. A replay the host
+/// stopped (<see cref="ShutdownReason"/>) is not complete; a replay whose client left writes nothing more.
+/// </summary>
+internal sealed record ReplaySummary(long Rows, long FailedRows, IReadOnlyList<WarningDto> Warnings, string? CutReason = null)
+{
+    /// <summary>The host began to stop: the rows already planned were written, the rest of the upload was not read.</summary>
+    public const string ShutdownReason = "shutdown";
+
+    public bool Complete => CutReason is null;
+}
 
 /// <summary>A replay's end: its totals, or the errors that refused it before any result was written.</summary>
 internal sealed record ReplayRun(ReplaySummary? Summary, IReadOnlyList<ProblemError> Errors);

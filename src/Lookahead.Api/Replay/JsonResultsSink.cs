@@ -6,8 +6,8 @@ using Lookahead.Api.Http;
 namespace Lookahead.Api.Replay;
 
 /// <summary>
-/// Writes { "modelId", "detail", "results": [ … ], "rows", "failedRows", "warnings" } as it goes; the totals come
-/// last because they are only known at the end.
+/// Writes { "modelId", "detail", "results": [ … ], "rows", "failedRows", "complete", "reason"?, "warnings" } as it
+/// goes; the totals come last because they are only known at the end.
 /// </summary>
 internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<ReplayDetail> detail, Func<IReadOnlyList<WarningDto>> sourceWarnings) : IReplaySink
 {
@@ -60,8 +60,7 @@ internal sealed class JsonResultsSink(PipeWriter writer, string modelId, Func<Re
         using (var json = new Utf8JsonWriter(tail, new JsonWriterOptions { Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping }))
         {
             json.WriteStartObject();
-            json.WriteNumber("rows", summary.Rows);
-            json.WriteNumber("failedRows", summary.FailedRows);
+            ResultJsonWriter.WriteTotals(json, summary);
             json.WritePropertyName("warnings");
             ResultJsonWriter.WriteWarnings(json, sourceWarnings().Concat(summary.Warnings));
             json.WriteEndObject();

@@ -4,7 +4,10 @@ using System.Text.Json;
 
 namespace Lookahead.Api.Replay;
 
-/// <summary>One result per line, in input order, flushed after every batch.</summary>
+/// <summary>
+/// One result per line, in input order, flushed after every batch; the last line is the summary
+/// <c>{"summary":{"rows","failedRows","complete","reason"?}}</c>, which no result line can be mistaken for.
+/// </summary>
 internal sealed class NdjsonSink(PipeWriter writer, ReplayDetail detail) : IReplaySink
 {
     public ValueTask StartAsync(CancellationToken cancellationToken) => ValueTask.CompletedTask;
@@ -29,6 +32,18 @@ internal sealed class NdjsonSink(PipeWriter writer, ReplayDetail detail) : IRepl
         await writer.FlushAsync(cancellationToken);
     }
 
-    public async ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken) =>
+    public async ValueTask CompleteAsync(ReplaySummary summary, CancellationToken cancellationToken)
+    {
+        using (var json = new Utf8JsonWriter(writer))
+        {
+            json.WriteStartObject();
+            json.WriteStartObject("summary");
+            ResultJsonWriter.WriteTotals(json, summary);
+            json.WriteEndObject();
+            json.WriteEndObject();
+        }
+
+        writer.Write("\n"u8);
         await writer.FlushAsync(cancellationToken);
+    }
 }

@@ -143,6 +143,7 @@ public static class ReplayApi
 
         log.Set("ReplayRows", summary.Rows);
         log.Set("ReplayFailedRows", summary.FailedRows);
+        log.Set("ReplayComplete", summary.Complete);
         return TypedResults.Empty;
     }
 

@@ -26,8 +26,12 @@ public sealed record ReplayRowRequest(
     double[]? PreviousInput,
     VectorOrRows? Disturbance);
 
-/// <summary>JSON replay answer, streamed: results come in input order, one per request.</summary>
-public sealed record ReplayResponse(string ModelId, string Detail, IReadOnlyList<ReplayRowResult> Results, long Rows, long FailedRows, IReadOnlyList<string> Warnings);
+/// <summary>
+/// JSON replay answer, streamed: results come in input order, one per request. complete is false when the service
+/// began to stop during the replay: the rows already planned are there, the rest of the upload was not read, and
+/// reason says why ("shutdown").
+/// </summary>
+public sealed record ReplayResponse(string ModelId, string Detail, IReadOnlyList<ReplayRowResult> Results, long Rows, long FailedRows, bool Complete, string? Reason, IReadOnlyList<string> Warnings);
 
 /// <summary>
 /// One replayed row. Row numbers are 1-based positions in the input (NDJSON: the line number).

@@ -11,9 +11,10 @@ namespace Lookahead.Api.Replay;
 /// read, and results are written strictly in input order. Two batches of slots are all the memory it needs,
 /// whatever the number of rows. Every batch is planned on every worker; an estimation replay
 /// (<see cref="ReplayMode.Measurements"/>) first runs its estimator through the batch on one thread, because each
-/// row's estimate depends on the row before.
+/// row's estimate depends on the row before. When the host begins to stop, a replay takes no further batch: it writes
+/// the rows already planned and ends with a summary that says it was cut, well inside the shutdown grace.
 /// </summary>
-public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner planner, ReplayMetrics metrics)
+public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner planner, ReplayMetrics metrics, IHostApplicationLifetime lifetime)
 {
     /// <returns>The totals, or the errors that refused the whole replay before any result was written (400).</returns>
     internal async Task<ReplayRun> RunAsync(IReplaySource source, IReplaySink sink, CompiledModel model, string format, CancellationToken cancellationToken)
@@ -37,9 +38,25 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
             scratches[w] = new Utf8JsonWriter(Stream.Null, new JsonWriterOptions { Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping });
         }
 
+        // Reading the upload also stops when the host does: a client that keeps sending must not hold the replay
+        // past the grace. Planning and writing stop only when the client leaves.
+        var stopping = lifetime.ApplicationStopping;
+        using var reading = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken, stopping);
+        string? cut = null;
         try
         {
-            bool filled = await source.FillAsync(current, cancellationToken);
+            bool filled;
+            try
+            {
+                filled = await source.FillAsync(current, reading.Token);
+            }
+            catch (OperationCanceledException) when (StoppedByHost(stopping, cancellationToken))
+            {
+                // Nothing was read whole: an empty replay, cut.
+                await sink.StartAsync(cancellationToken);
+                return await CompleteAsync(sink, new ReplaySummary(0, 0, [], ReplaySummary.ShutdownReason), cancellationToken);
+            }
+
             var modeErrors = source.ChooseMode(current, model);
             if (modeErrors.Count > 0)
             {
@@ -56,7 +73,7 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
 
                 // Read ahead on another thread while this batch is planned.
                 var next = spare;
-                var filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, cancellationToken).AsTask(), cancellationToken);
+                var filling = fatal ? Task.FromResult(false) : Task.Run(() => source.FillAsync(next, reading.Token).AsTask(), reading.Token);
                 var batch = current;
                 if (chain is not null)
                 {
@@ -110,7 +127,22 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
                 failed += batchFailed;
                 rows += batch.Count;
                 (current, spare) = (spare, current);
-                filled = await filling;
+                try
+                {
+                    filled = await filling;
+                }
+                catch (OperationCanceledException) when (StoppedByHost(stopping, cancellationToken))
+                {
+                    filled = false;
+                    cut = ReplaySummary.ShutdownReason;
+                }
+
+                if (filled && stopping.IsCancellationRequested)
+                {
+                    // A batch read but not planned is dropped: the host is stopping, and its rows were never answered.
+                    filled = false;
+                    cut = ReplaySummary.ShutdownReason;
+                }
             }
         }
         finally
@@ -121,7 +153,14 @@ public sealed class ReplayRunner(IOptions<ReplayOptions> options, PlanRunner pla
             }
         }
 
-        var summary = new ReplaySummary(rows, failed, []);
+        return await CompleteAsync(sink, new ReplaySummary(rows, failed, [], cut), cancellationToken);
+    }
+
+    private static bool StoppedByHost(CancellationToken stopping, CancellationToken client) =>
+        stopping.IsCancellationRequested && !client.IsCancellationRequested;
+
+    private static async Task<ReplayRun> CompleteAsync(IReplaySink sink, ReplaySummary summary, CancellationToken cancellationToken)
+    {
         await sink.CompleteAsync(summary, cancellationToken);
         return new ReplayRun(summary, []);
     }

@@ -155,4 +155,16 @@ internal static class ResultJsonWriter
 
         writer.WriteEndArray();
     }
+
+    /// <summary>The totals a JSON or NDJSON replay ends with: rows, failedRows, complete, and why not when it was cut.</summary>
+    public static void WriteTotals(Utf8JsonWriter json, ReplaySummary summary)
+    {
+        json.WriteNumber("rows", summary.Rows);
+        json.WriteNumber("failedRows", summary.FailedRows);
+        json.WriteBoolean("complete", summary.Complete);
+        if (summary.CutReason is { } reason)
+        {
+            json.WriteString("reason", reason);
+        }
+    }
 }

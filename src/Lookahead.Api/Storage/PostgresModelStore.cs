@@ -158,6 +158,19 @@ public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
             return new AliasOutcome(AliasStatus.Unchanged, await ReadAliasAsync(connection, name, cancellationToken));
         }
 
+        // The caller read the clock before it queued for the alias lock (and replicas' clocks differ), so a change
+        // that waited may carry an earlier time than the one before it: clamped, the history read in write order is
+        // also in time order.
+        long stored = StoreTime.ToStored(at);
+        await using (var latest = new NpgsqlCommand($"SELECT MAX(set_at) FROM {History} WHERE name = $1", connection, transaction))
+        {
+            latest.Parameters.Add(new NpgsqlParameter { Value = name });
+            if (await latest.ExecuteScalarAsync(cancellationToken) is long previous)
+            {
+                stored = Math.Max(stored, previous);
+            }
+        }
+
         await using (var write = new NpgsqlCommand(
             $"""
             INSERT INTO {Aliases} (name, model_id, updated_at) VALUES ($1, $2, $3)
@@ -168,7 +181,7 @@ public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
         {
             write.Parameters.Add(new NpgsqlParameter { Value = name });
             write.Parameters.Add(new NpgsqlParameter { Value = modelId });
-            write.Parameters.Add(new NpgsqlParameter { Value = StoreTime.ToStored(at) });
+            write.Parameters.Add(new NpgsqlParameter { Value = stored });
             await write.ExecuteNonQueryAsync(cancellationToken);
         }
 
@@ -176,7 +189,7 @@ public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
         {
             history.Parameters.Add(new NpgsqlParameter { Value = name });
             history.Parameters.Add(new NpgsqlParameter { Value = modelId });
-            history.Parameters.Add(new NpgsqlParameter { Value = StoreTime.ToStored(at) });
+            history.Parameters.Add(new NpgsqlParameter { Value = stored });
             await history.ExecuteNonQueryAsync(cancellationToken);
         }
 

@@ -138,6 +138,9 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
                 return new AliasOutcome(AliasStatus.Unchanged, await ReadAliasAsync(connection, name, cancellationToken));
             }
 
+            // The caller read the clock before it queued for the write lock, so a change that waited may carry an
+            // earlier time than the one before it: clamped, the history read in write order is also in time order.
+            long previous = await ScalarAsync<long?>(connection, transaction, "SELECT MAX(set_at) FROM alias_history WHERE name = $name", ("$name", name), cancellationToken) ?? long.MinValue;
             await using var command = connection.CreateCommand();
             command.Transaction = transaction;
             command.CommandText = """
@@ -147,7 +150,7 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
                 """;
             command.Parameters.AddWithValue("$name", name);
             command.Parameters.AddWithValue("$id", modelId);
-            command.Parameters.AddWithValue("$at", StoreTime.ToStored(at));
+            command.Parameters.AddWithValue("$at", Math.Max(StoreTime.ToStored(at), previous));
             await command.ExecuteNonQueryAsync(cancellationToken);
             await transaction.CommitAsync(cancellationToken);
             var status = current is null ? AliasStatus.Created : AliasStatus.Updated;

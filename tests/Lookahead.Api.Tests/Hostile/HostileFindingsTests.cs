@@ -78,7 +78,7 @@ public class HostileFindingsTests
         Assert.NotEmpty(await plan.ReadProblemAsync(HttpStatusCode.BadRequest));
 
         var replay = await client.PostAsync($"/v1/models/{id}/plans", new ByteArrayContent(Body("{\"state\":[1,0]}\n{\"", "\":1}\n")) { Headers = { { "Content-Type", "application/x-ndjson" } } });
-        var rows = (await replay.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries).Select(l => JsonNode.Parse(l)!).ToList();
+        var rows = ReplayAnswer.NdjsonResults(await replay.Content.ReadAsStringAsync());
         Assert.Equal(HttpStatusCode.OK, replay.StatusCode);
         Assert.Equal(["optimal", "error"], rows.Select(r => r["status"]!.GetValue<string>()));
     }
@@ -143,7 +143,7 @@ public class HostileFindingsTests
         string id = await client.RegisterAsync(TestModels.DoubleIntegrator);
 
         var response = await client.PostAsync($"/v1/models/{id}/plans", $"x1,x2\n0.5,-0.2\n{row}\n", "text/csv");
-        var lines = (await response.Content.ReadAsStringAsync()).Split('\n', StringSplitOptions.RemoveEmptyEntries);
+        var lines = ReplayAnswer.CsvLines(await response.Content.ReadAsStringAsync());
 
         Assert.Equal(HttpStatusCode.OK, response.StatusCode);
         Assert.Contains(",optimal,", lines[1], StringComparison.Ordinal);

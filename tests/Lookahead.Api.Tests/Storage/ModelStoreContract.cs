@@ -84,6 +84,39 @@ public abstract class ModelStoreContract : IAsyncLifetime
     }
 
     [StoreFact]
+    public async Task Concurrent_changes_of_one_alias_leave_its_history_in_time_order()
+    {
+        const int changes = 100;
+        for (int i = 0; i < changes; i++)
+        {
+            await Store.PutIfAbsentAsync(Model("m" + i), default);
+        }
+
+        // Each change read its clock before it queued for the lock, so the times arrive in no particular order;
+        // shuffled, they cannot come out sorted by chance.
+        var requested = Enumerable.Range(0, changes).Select(i => T0.AddSeconds(i)).ToArray();
+        new Random(20250301).Shuffle(requested);
+        var outcomes = await Task.WhenAll(Enumerable.Range(0, changes).Select(i => Task.Run(() => Store.SetAliasAsync("busy", Id("m" + i), requested[i], default))));
+
+        Assert.All(outcomes, o => Assert.NotEqual(AliasStatus.ModelNotFound, o.Status));
+        Assert.Single(outcomes, o => o.Status == AliasStatus.Created);
+        var alias = await Store.GetAliasAsync("busy", default);
+        Assert.NotNull(alias);
+        Assert.Equal(changes, alias!.History.Count);
+        Assert.Equal(Enumerable.Range(0, changes).Select(i => Id("m" + i)).Order(), alias.History.Select(h => h.ModelId).Order());
+        for (int k = 1; k < changes; k++)
+        {
+            Assert.True(alias.History[k].SetAt >= alias.History[k - 1].SetAt, $"change {k} ({alias.History[k].SetAt:O}) is earlier than change {k - 1} ({alias.History[k - 1].SetAt:O})");
+        }
+
+        // A change is never dated before the time it was asked for, and the alias shows its last change.
+        var asked = Enumerable.Range(0, changes).ToDictionary(i => Id("m" + i), i => requested[i]);
+        Assert.All(alias.History, h => Assert.True(h.SetAt >= asked[h.ModelId]));
+        Assert.Equal(alias.History[^1].ModelId, alias.ModelId);
+        Assert.Equal(alias.History[^1].SetAt, alias.UpdatedAt);
+    }
+
+    [StoreFact]
     public async Task An_alias_cannot_point_at_a_missing_model()
     {
         var outcome = await Store.SetAliasAsync("station", Id("ghost"), T0, default);

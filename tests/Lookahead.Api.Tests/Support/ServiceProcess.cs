@@ -7,7 +7,8 @@ namespace Lookahead.Api.Tests.Support;
 
 /// <summary>
 /// The built service as a real process (`dotnet Lookahead.Api.dll`) on a <see cref="ServiceStore"/>, for tests that
-/// kill it without a graceful shutdown and start another on the same store. Disposing kills it if it still runs.
+/// kill it without a graceful shutdown and start another on the same store, or stop it with SIGTERM. Disposing kills
+/// it if it still runs.
 /// </summary>
 public sealed class ServiceProcess : IDisposable
 {
@@ -86,6 +87,44 @@ public sealed class ServiceProcess : IDisposable
         process.Kill();
         await process.WaitForExitAsync();
     }
+
+    /// <summary>
+    /// SIGTERM, as systemd, docker and Kubernetes stop a service: the host begins its graceful shutdown. Returns at
+    /// once; <see cref="WaitForExitAsync"/> waits for the end.
+    /// </summary>
+    public void Terminate()
+    {
+        if (!OperatingSystem.IsLinux() && !OperatingSystem.IsMacOS())
+        {
+            throw new PlatformNotSupportedException("SIGTERM is sent with kill(1), on Linux or macOS");
+        }
+
+        using var kill = Process.Start(new ProcessStartInfo("kill") { ArgumentList = { "-TERM", process.Id.ToString(System.Globalization.CultureInfo.InvariantCulture) }, UseShellExecute = false })
+            ?? throw new InvalidOperationException("kill did not start");
+        kill.WaitForExit();
+        if (kill.ExitCode != 0)
+        {
+            throw new InvalidOperationException($"kill -TERM {process.Id} exited with code {kill.ExitCode}");
+        }
+    }
+
+    /// <summary>The exit code, or null when the process still runs after <paramref name="timeout"/>.</summary>
+    public async Task<int?> WaitForExitAsync(TimeSpan timeout)
+    {
+        using var wait = new CancellationTokenSource(timeout);
+        try
+        {
+            await process.WaitForExitAsync(wait.Token);
+            return process.ExitCode;
+        }
+        catch (OperationCanceledException)
+        {
+            return null;
+        }
+    }
+
+    /// <summary>The last lines the service wrote, for failure messages.</summary>
+    public string OutputTail => string.Join('\n', output);
 
     public void Dispose()
     {
