@@ -28,8 +28,14 @@ app.MapEstimationApi();
 app.MapAliasesApi();
 app.MapStationsApi();
 app.MapHostingEndpoints();
+if (!AnonymousBindingGuard.Permits(app))
+{
+    return 1;
+}
+
 AnonymousBindingGuard.Watch(app);
 app.Run();
+return Environment.ExitCode;
 
 /// <summary>Entry point; public and partial so tests can host it with WebApplicationFactory.</summary>
 public partial class Program;

@@ -12,34 +12,67 @@ namespace Lookahead.Api.Access;
 /// </summary>
 public static partial class AnonymousBindingGuard
 {
+    /// <summary>
+    /// Before the server starts: the addresses the configuration asks for (urls, http_ports, Kestrel endpoints). False,
+    /// with the reason logged, when they reach beyond loopback without keys and anonymous use is not allowed.
+    /// </summary>
+    public static bool Permits(WebApplication app)
+    {
+        var access = app.Services.GetRequiredService<IOptions<AccessOptions>>().Value;
+        if (access.Keys.Count > 0)
+        {
+            return true;
+        }
+
+        var configuration = app.Configuration;
+        var asked = (configuration["urls"] ?? "").Split(';', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).ToList();
+        foreach (var ports in new[] { configuration["http_ports"], configuration["https_ports"] })
+        {
+            asked.AddRange((ports ?? "").Split(';', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).Select(p => $"http://+:{p}"));
+        }
+
+        asked.AddRange(configuration.GetSection("Kestrel:Endpoints").GetChildren().Select(e => e["Url"]).OfType<string>());
+        return Decide(app, access, asked);
+    }
+
+    /// <summary>After the server has bound: the addresses it really listens on (a second look, for anything the configuration did not show).</summary>
     public static void Watch(WebApplication app)
     {
         app.Lifetime.ApplicationStarted.Register(() =>
         {
             var access = app.Services.GetRequiredService<IOptions<AccessOptions>>().Value;
-            var logger = app.Services.GetRequiredService<ILoggerFactory>().CreateLogger("Lookahead.Api.Access");
             var addresses = app.Services.GetRequiredService<IServer>().Features.Get<IServerAddressesFeature>()?.Addresses ?? [];
             if (access.Keys.Count > 0 || addresses.Count == 0)
             {
                 return;
             }
 
-            string exposed = string.Join(", ", addresses.Where(a => !IsLoopback(a)));
-            if (exposed.Length == 0)
+            if (!Decide(app, access, addresses))
             {
-                LoopbackOnly(logger);
-            }
-            else if (access.AllowAnonymous)
-            {
-                AnonymousAllowed(logger, exposed);
-            }
-            else
-            {
-                Refused(logger, exposed);
                 Environment.ExitCode = 1;
                 app.Lifetime.StopApplication();
             }
         });
+    }
+
+    private static bool Decide(WebApplication app, AccessOptions access, IEnumerable<string> addresses)
+    {
+        var logger = app.Services.GetRequiredService<ILoggerFactory>().CreateLogger("Lookahead.Api.Access");
+        string exposed = string.Join(", ", addresses.Where(a => !IsLoopback(a)));
+        if (exposed.Length == 0)
+        {
+            LoopbackOnly(logger);
+            return true;
+        }
+
+        if (access.AllowAnonymous)
+        {
+            AnonymousAllowed(logger, exposed);
+            return true;
+        }
+
+        Refused(logger, exposed);
+        return false;
     }
 
     /// <summary>True for 127.0.0.0/8, ::1 and "localhost"; false for wildcards (+, *, 0.0.0.0, ::) and other hosts.</summary>
