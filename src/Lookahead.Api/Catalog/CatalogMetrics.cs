@@ -19,6 +19,10 @@ public sealed class CatalogMetrics
         CacheEvictions = factory.CreateCounter("lookahead_model_cache_evictions_total", "Compiled models dropped from the cache, by reason.", "reason");
         CacheBytes = factory.CreateGauge("lookahead_model_cache_bytes", "Estimated bytes held by cached compiled models.");
         CacheEntries = factory.CreateGauge("lookahead_model_cache_entries", "Compiled models in the cache.");
+        CompilesRunning = factory.CreateGauge("lookahead_model_compiles_running", "Model compiles running now.");
+        CompilesQueued = factory.CreateGauge("lookahead_model_compiles_queued", "Model compiles waiting for a free slot.");
+        CompilesRefused = factory.CreateCounter("lookahead_model_compiles_refused_total", "Compiles refused or stopped by a budget, by reason (too_large, memory, queue, timeout).", "reason");
+        CompilesAbandoned = factory.CreateCounter("lookahead_model_compiles_abandoned_total", "Compiles given up because the client left, by where they were (queued, running).", "stage");
         Registrations = factory.CreateCounter("lookahead_model_registrations_total", "Registrations, by outcome (created, existing, rejected).", "outcome");
     }
 
@@ -37,6 +41,14 @@ public sealed class CatalogMetrics
     public Gauge CacheBytes { get; }
 
     public Gauge CacheEntries { get; }
+
+    public Gauge CompilesRunning { get; }
+
+    public Gauge CompilesQueued { get; }
+
+    public Counter CompilesRefused { get; }
+
+    public Counter CompilesAbandoned { get; }
 
     public Counter Registrations { get; }
 }

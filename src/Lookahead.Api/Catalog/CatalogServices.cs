@@ -11,7 +11,10 @@ public static class CatalogServices
     {
         services.AddOptions<CacheOptions>().BindConfiguration(CacheOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddOptions<PlanningOptions>().BindConfiguration(PlanningOptions.Section).ValidateDataAnnotations().ValidateOnStart();
+        services.AddOptions<CompileBudgetOptions>().BindConfiguration(CompileBudgetOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<CatalogMetrics>();
+        services.AddSingleton<IModelCompilation, CoreModelCompilation>();
+        services.AddSingleton<CompileBudget>();
         services.AddSingleton<CompiledModelCache>();
         services.AddSingleton<ModelCatalog>();
         services.ConfigureSwaggerGen(o =>

@@ -19,11 +19,13 @@ public sealed class CompiledModelCache : IDisposable
     private readonly ConcurrentDictionary<string, Lazy<Task<CompiledModel?>>> inFlight = new(StringComparer.Ordinal);
     private readonly CatalogMetrics metrics;
     private readonly CompileOptions compileOptions;
+    private readonly CompileBudget budget;
     private readonly ILogger<CompiledModelCache> logger;
     private readonly long sizeLimit;
 
-    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, IOptions<PlanningOptions> planning, CatalogMetrics metrics, ILogger<CompiledModelCache> logger)
+    public CompiledModelCache(IOptions<CacheOptions> options, IOptions<RequestLimitsOptions> limits, IOptions<PlanningOptions> planning, CompileBudget budget, CatalogMetrics metrics, ILogger<CompiledModelCache> logger)
     {
+        this.budget = budget;
         sizeLimit = options.Value.SizeLimitBytes;
         cache = new MemoryCache(new MemoryCacheOptions { SizeLimit = sizeLimit, TrackStatistics = true, CompactionPercentage = 0.1 });
         compileOptions = new CompileOptions { SizeLimits = limits.Value.ToSizeLimits(), MaxSolverIterations = planning.Value.MaxSolverIterations };
@@ -52,11 +54,14 @@ public sealed class CompiledModelCache : IDisposable
         return false;
     }
 
-    /// <summary>Compiles and counts; throws the core's validation exception unchanged.</summary>
-    public CompiledModel Compile(ModelDocument document)
+    /// <summary>
+    /// Compiles within the compile budgets and counts; throws the core's validation exception unchanged, and
+    /// <see cref="CompileRefusedException"/> when a budget is spent.
+    /// </summary>
+    public async Task<CompiledModel> CompileAsync(ModelDocument document, CancellationToken cancellationToken)
     {
         long started = Stopwatch.GetTimestamp();
-        var model = ModelCompiler.Compile(document, compileOptions);
+        var model = await budget.RunAsync(document, compileOptions, cancellationToken);
         metrics.Compilations.Inc();
         metrics.CompileDuration.Observe(Stopwatch.GetElapsedTime(started).TotalSeconds);
         return model;
@@ -130,7 +135,8 @@ public sealed class CompiledModelCache : IDisposable
             return null;
         }
 
-        var model = await Task.Run(() => Compile(document));
+        // Not a caller's token: other requests may be waiting on this same compile; only its time budget stops it.
+        var model = await CompileAsync(document, CancellationToken.None);
         Add(id, model);
         return model;
     }

@@ -41,7 +41,8 @@ public sealed class ModelCatalog(
             try
             {
                 // Compiled from the canonical form, exactly as a restart will recompile it.
-                model = cache.Compile(canonical.Document);
+                // The client's token: a registration whose client left is not compiled, or stops compiling.
+                model = await cache.CompileAsync(canonical.Document, cancellationToken);
             }
             catch (ModelValidationException ex)
             {

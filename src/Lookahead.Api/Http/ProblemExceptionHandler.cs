@@ -1,4 +1,5 @@
 using System.Text.Json;
+using Lookahead.Api.Catalog;
 using Lookahead.Api.Storage;
 using Lookahead.Core.Validation;
 using Microsoft.AspNetCore.Diagnostics;
@@ -29,6 +30,7 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
             BadHttpRequestException bad => ApiProblems.Create(bad.StatusCode, ProblemTypes.Http, "Bad request", "The request could not be read."),
             JsonException json => ApiProblems.MalformedJsonDetails(JsonErrorDescriber.Describe(json, limits.Value.MaxJsonDepth)),
             StoreUnavailableException unavailable => ApiProblems.Create(StatusCodes.Status503ServiceUnavailable, ProblemTypes.Unavailable, "Store unavailable", unavailable.Message),
+            CompileRefusedException refused => ApiProblems.Create(StatusCodes.Status503ServiceUnavailable, ProblemTypes.Unavailable, "Compile budget spent", refused.Message),
             ModelValidationException invalid => ApiProblems.Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", "The request has invalid fields; see errors.", invalid.Errors.Select(ApiProblems.ToProblemError)),
             _ => ApiProblems.Create(StatusCodes.Status500InternalServerError, ProblemTypes.Internal, "Unexpected error", "The service could not complete the request; the incident is logged with its trace id."),
         };
@@ -37,6 +39,11 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
         {
             // Expected while the store is down or its file is gone: a warning with the cause, not an incident per request.
             logger.LogWarning(exception.InnerException ?? exception, "Store unavailable on {Method} {Path}", httpContext.Request.Method, httpContext.Request.Path);
+        }
+        else if (exception is CompileRefusedException refusedCompile)
+        {
+            // Load shedding by design: counted in the metrics, one line per refusal at most.
+            logger.LogWarning("Compile refused ({Reason}) on {Method} {Path}", refusedCompile.Reason, httpContext.Request.Method, httpContext.Request.Path);
         }
         else if (problem.Status >= 500)
         {
@@ -52,6 +59,10 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
         if (exception is StoreUnavailableException)
         {
             httpContext.Response.Headers.RetryAfter = StoreUnavailableException.RetryAfterSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture);
+        }
+        else if (exception is CompileRefusedException)
+        {
+            httpContext.Response.Headers.RetryAfter = CompileRefusedException.RetryAfterSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture);
         }
 
         return await problems.TryWriteAsync(new ProblemDetailsContext { HttpContext = httpContext, ProblemDetails = problem, Exception = exception });

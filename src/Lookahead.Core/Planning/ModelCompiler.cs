@@ -27,10 +27,21 @@ public static class ModelCompiler
     public static CompiledModel Compile(ModelDocument document, CompileOptions? options = null) =>
         Compile(document, options, DenseLinearAlgebra.Default);
 
+    /// <summary>
+    /// Compiles <paramref name="document"/>, giving up between its phases (discretisation, Riccati, condensing, each
+    /// factorisation, the limit tables, the diagnostics, the preview maps) once <paramref name="cancellationToken"/> is
+    /// cancelled. A phase already running is finished first: the checks are coarse so they cost nothing measurable.
+    /// </summary>
+    /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
+    /// <exception cref="OperationCanceledException">The token was cancelled before the compile finished.</exception>
+    public static CompiledModel Compile(ModelDocument document, CompileOptions? options, CancellationToken cancellationToken) =>
+        Compile(document, options, DenseLinearAlgebra.Default, cancellationToken);
+
     /// <summary>Compiles <paramref name="document"/> with the dense kernels of <paramref name="algebra"/> (tests compare the two).</summary>
-    internal static CompiledModel Compile(ModelDocument document, CompileOptions? options, DenseLinearAlgebra algebra)
+    internal static CompiledModel Compile(ModelDocument document, CompileOptions? options, DenseLinearAlgebra algebra, CancellationToken cancellationToken = default)
     {
         options ??= CompileOptions.Default;
+        cancellationToken.ThrowIfCancellationRequested();
         var model = ModelValidator.Build(document, options.SizeLimits);
         int n = model.StateCount;
         var a = model.A;
@@ -39,6 +50,7 @@ public static class ModelCompiler
         if (model.TimeDomain == TimeDomain.Continuous)
         {
             (a, b, e) = Discretise(model);
+            cancellationToken.ThrowIfCancellationRequested();
         }
 
         var qx = model.C.TransposeThisAndMultiply(model.OutputWeight * model.C);
@@ -60,6 +72,7 @@ public static class ModelCompiler
                 }
 
                 terminal = riccati.P;
+                cancellationToken.ThrowIfCancellationRequested();
                 break;
             case TerminalWeightKind.Stage:
                 terminal = qx;
@@ -69,7 +82,8 @@ public static class ModelCompiler
                 break;
         }
 
-        var (withoutPrevious, withPrevious, condition) = BuildGains(model, a, b, terminal, algebra);
+        var (withoutPrevious, withPrevious, condition) = BuildGains(model, a, b, terminal, algebra, cancellationToken);
+        cancellationToken.ThrowIfCancellationRequested();
         var targets = Guarded("plant.a", "the steady-state targets of (A, B, C) could not be computed", () => TargetMap.Build(a, b, model.C, model.OutputWeight, e));
         ConstrainedProblem? constrainedWithout = null;
         ConstrainedProblem? constrainedWith = null;
@@ -84,7 +98,9 @@ public static class ModelCompiler
             }
 
             constrainedWithout = new ConstrainedProblem(model, a, b, withoutPrevious);
+            cancellationToken.ThrowIfCancellationRequested();
             constrainedWith = ReferenceEquals(withPrevious, withoutPrevious) ? constrainedWithout : new ConstrainedProblem(model, a, b, withPrevious);
+            cancellationToken.ThrowIfCancellationRequested();
             if ((model.Limits.HasRateBounds || model.Limits.HasOutputBounds) && model.StateCount + model.InputCount <= InteriorPointUpTo)
             {
                 int cap = Math.Min(options.MaxSolverIterations ?? InteriorPointProblem.DefaultMaxIterations, InteriorPointProblem.DefaultMaxIterations);
@@ -95,6 +111,8 @@ public static class ModelCompiler
                 targetSolver = Guarded("cost.outputWeight", "the limited steady-state targets could not be prepared", () => new TargetSolver(a, b, model.C, model.OutputWeight, model.Limits, e));
             }
         }
+
+        cancellationToken.ThrowIfCancellationRequested();
 
         // Diagnostics: what an engineer should read before closing the loop.
         // Each step names the field its data came from, should its scale defeat it.
@@ -142,6 +160,8 @@ public static class ModelCompiler
         var gain = new RecedingHorizonGain(DenseMatrix.Rows(gainRows), closedLoop, closedLoopRadius);
         // The estimator is designed on the discrete plant; measured disturbances enter its prediction as E v.
         var estimator = model.Document.Estimator is { } spec ? Estimation.EstimatorDesign.Build(a, b, model.C, spec) : null;
+        // The preview maps are built as the model is assembled below, the last large phase.
+        cancellationToken.ThrowIfCancellationRequested();
         return new CompiledModel(model, a, b, terminal, withoutPrevious, withPrevious, constrainedWithout, constrainedWith, interiorPoint, targets, targetSolver, diagnostics, gain, options) { DisturbanceInput = e, Estimator = estimator };
     }
 
@@ -210,9 +230,10 @@ public static class ModelCompiler
     /// is kept only when a plan can read it: under limits (the solver starts from it) or when the condition number
     /// calls for refinement steps.
     /// </summary>
-    private static (GainSet WithoutPrevious, GainSet WithPrevious, double Condition) BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, DenseLinearAlgebra algebra)
+    private static (GainSet WithoutPrevious, GainSet WithPrevious, double Condition) BuildGains(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, DenseLinearAlgebra algebra, CancellationToken cancellationToken)
     {
         var condensed = Condensing.Condense(a, b, model.C, model.OutputWeight, model.InputWeight, model.InputRateWeight, terminal, model.Horizon, algebra);
+        cancellationToken.ThrowIfCancellationRequested();
         if (!DenseKernels.AllFinite(condensed.Hessian) || !DenseKernels.AllFinite(condensed.Maps) || !MatrixScale.AllFinite(condensed.FreeCost))
         {
             throw new ModelValidationException("cost.horizon", "the predictions overflow over this horizon: the plant grows too fast for condensing; shorten the horizon or pre-stabilise the plant");
@@ -246,6 +267,8 @@ public static class ModelCompiler
             throw new ModelValidationException("cost.inputWeight", HessianTooSingular);
         }
 
+        cancellationToken.ThrowIfCancellationRequested();
+
         // Without the Δu_0 term Fup is zero, so only the columns before it are solved.
         var mapsWithout = condensed.Maps;
         var formWithout = GainSet.Solve(algebra, hessian, rows, layout, mapsWithout, layout.PreviousInputStart, condensed.FreeCost)
@@ -259,6 +282,8 @@ public static class ModelCompiler
         {
             return (withoutPrevious, withoutPrevious, condition);
         }
+
+        cancellationToken.ThrowIfCancellationRequested();
 
         // H with the Δu_0 term: the lower triangle back from the upper one, the diagonal, then S on the first block.
         for (int j = 0; j < rows; j++)

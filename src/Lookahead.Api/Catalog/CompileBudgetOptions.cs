@@ -1,0 +1,44 @@
+using System.ComponentModel.DataAnnotations;
+
+namespace Lookahead.Api.Catalog;
+
+/// <summary>
+/// Budgets for compiling models ("Compile" section): how many compile at once, how many may wait, how much memory the
+/// compiles in flight may claim by the core's estimate, and how long one may run.
+/// </summary>
+public sealed class CompileBudgetOptions : IValidatableObject
+{
+    public const string Section = "Compile";
+
+    /// <summary>Compiles running at the same time; 0 means one per processor.</summary>
+    [Range(0, 1024)]
+    public int MaxConcurrent { get; set; }
+
+    /// <summary>Compiles that may wait for a free slot; one more is refused with 503 and Retry-After.</summary>
+    [Range(0, 100_000)]
+    public int QueueLimit { get; set; } = 16;
+
+    /// <summary>Seconds one compile may run (waiting in the queue not counted) before it is cancelled.</summary>
+    [Range(1, 3600)]
+    public int TimeoutSeconds { get; set; } = 30;
+
+    /// <summary>Largest estimated size of one compiled model; a larger model is refused with 400 at registration.</summary>
+    [Range(1024, long.MaxValue)]
+    public long MaxModelBytes { get; set; } = 1024L * 1024 * 1024;
+
+    /// <summary>Sum of the estimates of compiles in flight (running or queued); beyond it a compile is refused with 503.</summary>
+    [Range(1024, long.MaxValue)]
+    public long MemoryBudgetBytes { get; set; } = 2048L * 1024 * 1024;
+
+    /// <summary>The slots <see cref="MaxConcurrent"/> stands for on this machine.</summary>
+    public int EffectiveConcurrency => MaxConcurrent > 0 ? MaxConcurrent : Environment.ProcessorCount;
+
+    public IEnumerable<ValidationResult> Validate(ValidationContext validationContext)
+    {
+        if (MaxModelBytes > MemoryBudgetBytes)
+        {
+            // Otherwise a model admitted by size could never find room and would be refused as "busy" forever.
+            yield return new ValidationResult("Compile:MaxModelBytes must not exceed Compile:MemoryBudgetBytes.", [nameof(MaxModelBytes), nameof(MemoryBudgetBytes)]);
+        }
+    }
+}
