@@ -38,14 +38,15 @@ public sealed class ServiceProcess : IDisposable
     /// <summary>Starts the service on the store and returns once /health/ready answers (the store is reachable).</summary>
     /// <param name="settings">Further settings (configuration keys such as "Replay:BatchSize"), passed as environment variables.</param>
     /// <param name="listenHost">The host in --urls (loopback by default; 0.0.0.0 listens on every address, still reached on loopback).</param>
-    public static async Task<ServiceProcess> StartAsync(ServiceStore store, IReadOnlyDictionary<string, string>? settings = null, string listenHost = "127.0.0.1")
+    /// <param name="port">The port to listen on (a free one by default); a replica restarted behind a proxy comes back on its old port.</param>
+    public static async Task<ServiceProcess> StartAsync(ServiceStore store, IReadOnlyDictionary<string, string>? settings = null, string listenHost = "127.0.0.1", int? port = null)
     {
         if (!File.Exists(Repository.ApiAssembly))
         {
             throw new FileNotFoundException($"build the service first: {Repository.ApiAssembly} is missing", Repository.ApiAssembly);
         }
 
-        var address = new Uri($"http://127.0.0.1:{FreePort()}");
+        var address = new Uri($"http://127.0.0.1:{port ?? FreePort()}");
         var start = new ProcessStartInfo("dotnet")
         {
             WorkingDirectory = Path.GetDirectoryName(Repository.ApiAssembly)!,
@@ -140,7 +141,8 @@ public sealed class ServiceProcess : IDisposable
     // The host reads environment variables prefixed Lookahead__, with __ for the section separator.
     private static string EnvironmentName(string key) => "Lookahead__" + key.Replace(":", "__", StringComparison.Ordinal);
 
-    private static int FreePort()
+    /// <summary>A loopback port nothing listens on right now.</summary>
+    public static int FreePort()
     {
         using var listener = new TcpListener(IPAddress.Loopback, 0);
         listener.Start();

@@ -1,0 +1,19 @@
+using System.Globalization;
+
+namespace Lookahead.Api.Tests.Support;
+
+/// <summary>One access-log entry of <see cref="NginxProxy"/>.</summary>
+public sealed record ProxiedRequest(int Status, IReadOnlyList<string> Upstreams, string UpstreamStatuses, string Request)
+{
+    /// <summary>nginx tried more than one replica for it.</summary>
+    public bool Retried => Upstreams.Count > 1;
+
+    public static ProxiedRequest Parse(string line)
+    {
+        string[] parts = line.Split('|');
+        var upstreams = parts[1].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries)
+            .Where(u => u != "-")
+            .ToList();
+        return new ProxiedRequest(int.Parse(parts[0], CultureInfo.InvariantCulture), upstreams, parts[2], parts[3]);
+    }
+}
