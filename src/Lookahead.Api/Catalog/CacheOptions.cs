@@ -17,4 +17,12 @@ public sealed class CacheOptions
     /// </summary>
     [Range(0, 3600)]
     public int AliasSeconds { get; set; } = 5;
+
+    /// <summary>
+    /// Seconds a compiled model is planned with before the store is asked again whether it is still registered (0: on
+    /// every plan). Bounds how late a delete done on another instance takes effect here; during a store outage the
+    /// compiled model keeps planning.
+    /// </summary>
+    [Range(0, 3600)]
+    public int ModelSeconds { get; set; } = 5;
 }

@@ -17,8 +17,11 @@ public sealed class ModelCatalog(
     IOptions<JsonOptions> json,
     IOptions<RequestLimitsOptions> limits,
     CatalogMetrics metrics,
-    TimeProvider time)
+    TimeProvider time,
+    IOptions<CacheOptions> cacheOptions)
 {
+    private readonly System.Collections.Concurrent.ConcurrentDictionary<string, long> confirmed = new(StringComparer.Ordinal);
+
     public async Task<RegistrationResult> RegisterAsync(ModelDocumentDto dto, CancellationToken cancellationToken)
     {
         var normalised = ModelDocumentMapping.Normalise(dto);
@@ -59,7 +62,54 @@ public sealed class ModelCatalog(
     }
 
     /// <summary>The compiled model, from the cache or recompiled from the store; null when no such model is registered.</summary>
-    public Task<CompiledModel?> GetCompiledAsync(string id) =>
+    public async Task<CompiledModel?> GetCompiledAsync(string id)
+    {
+        if (cache.TryGet(id, out var cached))
+        {
+            return await StillRegisteredAsync(id) ? cached : null;
+        }
+
+        var model = await LoadAsync(id);
+        if (model is not null)
+        {
+            confirmed[id] = time.GetTimestamp();
+        }
+
+        return model;
+    }
+
+    /// <summary>
+    /// Whether a cached model is still in the store, asked at most every Cache:ModelSeconds: another instance may have
+    /// deleted it. Only the first request after the interval asks; a store that cannot answer leaves the model in use.
+    /// </summary>
+    private async Task<bool> StillRegisteredAsync(string id)
+    {
+        long now = time.GetTimestamp();
+        long interval = cacheOptions.Value.ModelSeconds * time.TimestampFrequency;
+        if (confirmed.TryGetValue(id, out long at) && now - at < interval)
+        {
+            return true;
+        }
+
+        confirmed[id] = now;
+        try
+        {
+            if (await store.GetAsync(id, CancellationToken.None) is not null)
+            {
+                return true;
+            }
+        }
+        catch (StoreUnavailableException)
+        {
+            return true;
+        }
+
+        cache.Remove(id);
+        confirmed.TryRemove(id, out _);
+        return false;
+    }
+
+    private Task<CompiledModel?> LoadAsync(string id) =>
         cache.GetOrCompileAsync(id, async () =>
         {
             // Not the caller's token: other requests may be waiting on this same load.

@@ -77,6 +77,7 @@ public sealed class ReplicaSet : IAsyncDisposable
     private static Dictionary<string, string> Settings => new()
     {
         ["Cache:AliasSeconds"] = AliasSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture),
+        ["Cache:ModelSeconds"] = AliasSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture),
         ["Proxies:Addresses:0"] = "127.0.0.1",
     };
 }
