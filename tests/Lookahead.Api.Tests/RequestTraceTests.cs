@@ -53,6 +53,27 @@ public class RequestTraceTests
     }
 
     [Fact]
+    public async Task The_request_line_records_the_status_the_client_got_when_a_handler_turns_a_fault_into_a_problem()
+    {
+        var events = new ConcurrentQueue<LogEvent>();
+        await using var factory = new LookaheadFactory(new Dictionary<string, string?>
+        {
+            ["Serilog:MinimumLevel:Override:Serilog.AspNetCore"] = "Information", ["Demo:Enabled"] = "false",
+        });
+        var client = Capturing(factory, events).CreateClient();
+        await client.RegisterAsync(TestModels.TwoTanks);
+
+        // The store's file deleted under the service: registration is refused with 503 (a store fault).
+        File.Delete(factory.DatabasePath);
+        var refused = await client.PostJsonAsync("/v1/models", TestModels.DoubleIntegrator);
+        Assert.Equal(HttpStatusCode.ServiceUnavailable, refused.StatusCode);
+
+        var line = events.Last(e => e.Properties.TryGetValue("RequestPath", out var path) && path.ToString() == "\"/v1/models\"");
+        Assert.Equal("503", line.Properties["StatusCode"].ToString());
+        Assert.Equal(LogEventLevel.Warning, line.Level);
+    }
+
+    [Fact]
     public async Task A_problem_carries_the_trace_id_of_its_request_and_the_header_names_it_too()
     {
         await using var factory = new LookaheadFactory();

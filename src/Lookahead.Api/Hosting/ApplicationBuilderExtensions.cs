@@ -18,8 +18,7 @@ public static class ApplicationBuilderExtensions
         }
 
         app.UseTraceIdHeader();
-        app.UseExceptionHandler();
-        app.UseStatusCodePages();
+        // Outside the exception handler, so the line records the status the client got (a store fault's 503), not a 500.
         app.UseSerilogRequestLogging(o =>
         {
             // The configured logger, not the static one (left silent on purpose, so two hosts in one process never mix).
@@ -36,10 +35,13 @@ public static class ApplicationBuilderExtensions
                 log.Set("TraceId", TraceContext.Id(context));
             };
             o.GetLevel = (context, _, exception) =>
-                exception is not null || context.Response.StatusCode >= 500 ? LogEventLevel.Error
+                exception is not null || context.Response.StatusCode is >= 500 and not StatusCodes.Status503ServiceUnavailable ? LogEventLevel.Error
+                : context.Response.StatusCode == StatusCodes.Status503ServiceUnavailable ? LogEventLevel.Warning
                 : context.Request.Path.StartsWithSegments("/health") || context.Request.Path.StartsWithSegments("/metrics") ? LogEventLevel.Verbose
                 : LogEventLevel.Information;
         });
+        app.UseExceptionHandler();
+        app.UseStatusCodePages();
         var registry = app.Services.GetRequiredService<CollectorRegistry>();
         app.UseHttpMetrics(o => o.SetMetricFactory(Metrics.WithCustomRegistry(registry)));
         app.UseRouting();
