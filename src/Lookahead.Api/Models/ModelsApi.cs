@@ -10,9 +10,6 @@ namespace Lookahead.Api.Models;
 /// <summary>Registering, reading, listing and deleting models, and their receding-horizon gain.</summary>
 public static class ModelsApi
 {
-    public const int DefaultPageSize = 50;
-    public const int MaxPageSize = 500;
-
     public static RouteGroupBuilder MapModelsApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);
@@ -76,24 +73,13 @@ public static class ModelsApi
 
     public static async Task<Results<Ok<ModelPage>, ProblemHttpResult>> ListAsync(ModelCatalog catalog, CancellationToken cancellationToken, int? offset = null, int? limit = null)
     {
-        var errors = new List<ProblemError>();
-        if (offset < 0)
+        var page = PageRequest.Read(offset, limit, out var problem);
+        if (problem is not null)
         {
-            errors.Add(new("offset", "must be 0 or more"));
+            return problem;
         }
 
-        if (limit is < 1 or > MaxPageSize)
-        {
-            errors.Add(new("limit", $"must be between 1 and {MaxPageSize}"));
-        }
-
-        if (errors.Count > 0)
-        {
-            return ApiProblems.Validation(errors);
-        }
-
-        int from = offset ?? 0;
-        int size = limit ?? DefaultPageSize;
+        var (from, size) = (page.Offset, page.Limit);
         var listing = await catalog.ListAsync(from, size, cancellationToken);
         var items = listing.Items
             .Select(s => new ModelSummary(s.Id, s.Name, ModelResponses.Dimensions(s.States, s.Inputs, s.Outputs, s.Horizon), s.RegisteredAt))

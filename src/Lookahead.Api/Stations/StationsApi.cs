@@ -18,9 +18,6 @@ namespace Lookahead.Api.Stations;
 /// </summary>
 public static class StationsApi
 {
-    public const int DefaultPageSize = 50;
-    public const int MaxPageSize = 500;
-
     public static IServiceCollection AddStations(this IServiceCollection services)
     {
         services.AddSingleton<StationLocks>();
@@ -138,24 +135,13 @@ public static class StationsApi
     public static async Task<Results<Ok<StationPage>, ProblemHttpResult>> ListAsync(
         IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken, int? offset = null, int? limit = null)
     {
-        var errors = new List<ProblemError>();
-        if (offset < 0)
+        var page = PageRequest.Read(offset, limit, out var problem);
+        if (problem is not null)
         {
-            errors.Add(new("offset", "must be 0 or more"));
+            return problem;
         }
 
-        if (limit is < 1 or > MaxPageSize)
-        {
-            errors.Add(new("limit", $"must be between 1 and {MaxPageSize}"));
-        }
-
-        if (errors.Count > 0)
-        {
-            return ApiProblems.Validation(errors);
-        }
-
-        int from = offset ?? 0;
-        int size = limit ?? DefaultPageSize;
+        var (from, size) = (page.Offset, page.Limit);
         var listing = await stations.ListStationsAsync(from, size, cancellationToken);
         var items = listing.Items.Select(s => ToResponse(s, reader.SerializerOptions)).ToList();
         return TypedResults.Ok(new StationPage(items, from, size, listing.Total));
