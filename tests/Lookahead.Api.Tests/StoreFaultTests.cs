@@ -34,6 +34,33 @@ public class StoreFaultTests
     }
 
     [Fact]
+    public async Task Readiness_probes_through_an_outage_log_the_cause_once_not_a_stack_trace_each()
+    {
+        var events = new System.Collections.Concurrent.ConcurrentQueue<Serilog.Events.LogEvent>();
+        await using var factory = new LookaheadFactory(NoDemo);
+        var host = factory.WithWebHostBuilder(b => Microsoft.AspNetCore.TestHost.WebHostBuilderExtensions.ConfigureTestServices(
+            b, s => Microsoft.Extensions.DependencyInjection.ServiceCollectionServiceExtensions.AddSingleton<Serilog.Core.ILogEventSink>(s, new Sink(events))));
+        var client = host.CreateClient();
+        Assert.Equal(HttpStatusCode.OK, (await client.GetAsync("/health/ready")).StatusCode);
+
+        File.Delete(factory.DatabasePath);
+        for (int probe = 0; probe < 5; probe++)
+        {
+            Assert.Equal(HttpStatusCode.ServiceUnavailable, (await client.GetAsync("/health/ready")).StatusCode);
+        }
+
+        var withCause = events.Where(e => e.Exception is not null).ToList();
+        Assert.True(withCause.Count == 1, string.Join("\n", withCause.Select(e => $"{e.Properties.GetValueOrDefault("SourceContext")}: {e.RenderMessage()}")));
+        var warning = Assert.Single(withCause);
+        Assert.Contains("StoreHealthCheck", warning.Properties["SourceContext"].ToString(), StringComparison.Ordinal);
+    }
+
+    private sealed class Sink(System.Collections.Concurrent.ConcurrentQueue<Serilog.Events.LogEvent> events) : Serilog.Core.ILogEventSink
+    {
+        public void Emit(Serilog.Events.LogEvent logEvent) => events.Enqueue(logEvent);
+    }
+
+    [Fact]
     public async Task A_station_step_after_the_database_file_was_deleted_is_refused_with_503_not_acknowledged()
     {
         await using var factory = new LookaheadFactory(NoDemo);

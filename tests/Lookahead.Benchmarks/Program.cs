@@ -10,6 +10,7 @@ public static class Program
     /// <c>--demo-ratios</c> (add <c>engineering</c> for the demo as served) times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
     /// <c>--model-memory [limits] n×m×N …</c> prints what compiled models keep in memory (<see cref="ModelMemory"/>);
     /// <c>--station-load BASE_URL …</c> runs concurrent station loops against a running service (<see cref="StationLoad"/>);
+    /// <c>--compile-load BASE_URL PID …</c> plans a small model while the largest models register at once (<see cref="CompileLoad"/>);
     /// anything else goes to BenchmarkDotNet (e.g. <c>--filter '*PlanBenchmarks*'</c>).
     /// </summary>
     public static int Main(string[] args)
@@ -18,6 +19,12 @@ public static class Program
         if (stationLoad >= 0)
         {
             return StationLoad.RunAsync(args[(stationLoad + 1)..], Console.Out).GetAwaiter().GetResult();
+        }
+
+        int compileLoad = Array.FindIndex(args, a => a.Equals("--compile-load", StringComparison.OrdinalIgnoreCase));
+        if (compileLoad >= 0)
+        {
+            return CompileLoad.RunAsync(args[(compileLoad + 1)..], Console.Out).GetAwaiter().GetResult();
         }
 
         if (args.Contains("--flops", StringComparer.OrdinalIgnoreCase))

@@ -12,6 +12,7 @@ public static class AccessApi
                 "Auth:Keys:*:Hash must be 64 lower-case hexadecimal digits (the SHA-256 of the key, never the key)")
             .Validate(o => o.Keys.All(k => k.Scopes.Count > 0 && k.Scopes.All(AccessScopes.All.Contains)),
                 $"Auth:Keys:*:Scopes must name at least one of {string.Join(", ", AccessScopes.All.Order(StringComparer.Ordinal))}")
+            .Validate(o => o.Keys.All(k => k.Tenant is null || Tenants.IsWellFormed(k.Tenant)), $"Auth:Keys:*:Tenant {Tenants.Rule}")
             .Validate(o => o.Keys.Select(k => k.Hash).Distinct(StringComparer.Ordinal).Count() == o.Keys.Count, "Auth:Keys holds the same hash twice")
             .ValidateOnStart();
         services.AddAuthentication(ApiKeyAuthentication.SchemeName).AddScheme<AuthenticationSchemeOptions, ApiKeyAuthentication>(ApiKeyAuthentication.SchemeName, null);

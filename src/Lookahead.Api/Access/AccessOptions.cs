@@ -23,4 +23,10 @@ public sealed class ApiKeyOptions
 
     /// <summary>Scopes: models:write, plans:run, stations:step, admin.</summary>
     public List<string> Scopes { get; set; } = [];
+
+    /// <summary>
+    /// The tenant the key acts for: its models, aliases and stations are invisible to keys of other tenants. Keys
+    /// without one share the default tenant (where the demo is registered).
+    /// </summary>
+    public string? Tenant { get; set; }
 }

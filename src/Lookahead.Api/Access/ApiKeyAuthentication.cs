@@ -54,6 +54,7 @@ public sealed class ApiKeyAuthentication(
         log.Set("KeyId", keyId);
         var claims = new List<Claim> { new(ClaimTypes.NameIdentifier, keyId) };
         claims.AddRange(match.Scopes.Select(s => new Claim(AccessScopes.ClaimType, s)));
+        claims.Add(Tenants.Claim(match.Tenant ?? Tenants.Default));
         var principal = new ClaimsPrincipal(new ClaimsIdentity(claims, SchemeName));
         return Task.FromResult(AuthenticateResult.Success(new AuthenticationTicket(principal, SchemeName)));
     }

@@ -6,4 +6,5 @@ public sealed record AliasRequest(string? ModelId);
 /// <summary>An alias, its current target and every target it had, oldest first.</summary>
 public sealed record AliasResponse(string Name, string ModelId, DateTimeOffset UpdatedAt, IReadOnlyList<AliasHistoryEntry> History);
 
-public sealed record AliasHistoryEntry(string ModelId, DateTimeOffset SetAt);
+/// <param name="ChangedBy">The id of the key that made the change (the first 12 hex digits of its hash); null when the service ran without keys.</param>
+public sealed record AliasHistoryEntry(string ModelId, DateTimeOffset SetAt, string? ChangedBy);

@@ -13,14 +13,15 @@ namespace Lookahead.Api.Aliases;
 /// </summary>
 public sealed class AliasResolver(IModelStore store, IOptions<CacheOptions> options, TimeProvider time, ILogger<AliasResolver> logger)
 {
-    private readonly ConcurrentDictionary<string, Resolution> resolutions = new(StringComparer.Ordinal);
+    private readonly ConcurrentDictionary<(string Tenant, string Name), Resolution> resolutions = new();
     private readonly TimeSpan lifetime = TimeSpan.FromSeconds(options.Value.AliasSeconds);
 
-    /// <summary>The model id the alias points at, or null when there is no such alias.</summary>
-    public async Task<string?> ResolveAsync(string name, CancellationToken cancellationToken)
+    /// <summary>The model id the tenant's alias points at, or null when the tenant has no such alias.</summary>
+    public async Task<string?> ResolveAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         var now = time.GetUtcNow();
-        resolutions.TryGetValue(name, out var known);
+        var key = (tenant, name);
+        resolutions.TryGetValue(key, out var known);
         if (known is not null && now - known.ReadAt < lifetime)
         {
             return known.ModelId;
@@ -28,15 +29,15 @@ public sealed class AliasResolver(IModelStore store, IOptions<CacheOptions> opti
 
         try
         {
-            var alias = await store.GetAliasAsync(name, cancellationToken);
+            var alias = await store.GetAliasAsync(tenant, name, cancellationToken);
             if (alias is null)
             {
-                resolutions.TryRemove(name, out _);
+                resolutions.TryRemove(key, out _);
                 return null;
             }
 
             // Only existing aliases are kept, so the table is bounded by the aliases there are.
-            resolutions[name] = new Resolution(alias.ModelId, now);
+            resolutions[key] = new Resolution(alias.ModelId, now);
             return alias.ModelId;
         }
         catch (StoreUnavailableException ex) when (known is not null)
@@ -47,7 +48,7 @@ public sealed class AliasResolver(IModelStore store, IOptions<CacheOptions> opti
     }
 
     /// <summary>Drops what this instance knows of the alias, after it was set or deleted here.</summary>
-    public void Forget(string name) => resolutions.TryRemove(name, out _);
+    public void Forget(string tenant, string name) => resolutions.TryRemove((tenant, name), out _);
 
     private sealed record Resolution(string ModelId, DateTimeOffset ReadAt);
 }

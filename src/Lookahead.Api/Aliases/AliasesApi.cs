@@ -37,6 +37,7 @@ public static class AliasesApi
             .ProducesLookupProblems();
 
         group.MapPost("/{name}/plan", PlanAsync)
+            .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForAlias")
             .WithSummary("Plan with the model the alias points at now; the answer names that model")
@@ -72,8 +73,9 @@ public static class AliasesApi
             return ModelProblems.MalformedId(modelId, "modelId");
         }
 
-        var outcome = await store.SetAliasAsync(name, modelId, time.GetUtcNow(), cancellationToken);
-        resolver.Forget(name);
+        string tenant = Tenants.Of(request.HttpContext);
+        var outcome = await store.SetAliasAsync(tenant, name, modelId, time.GetUtcNow(), Tenants.ChangedBy(request.HttpContext), cancellationToken);
+        resolver.Forget(tenant, name);
         return outcome.Status switch
         {
             AliasStatus.ModelNotFound => ModelProblems.ModelNotFound(modelId, "modelId"),
@@ -82,26 +84,28 @@ public static class AliasesApi
         };
     }
 
-    public static async Task<Results<Ok<AliasResponse>, ProblemHttpResult>> GetAsync(string name, IModelStore store, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<AliasResponse>, ProblemHttpResult>> GetAsync(string name, HttpContext context, IModelStore store, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
             return AliasProblems.MalformedAlias(name);
         }
 
-        var alias = await store.GetAliasAsync(name, cancellationToken);
+        var alias = await store.GetAliasAsync(Tenants.Of(context), name, cancellationToken);
         return alias is null ? AliasProblems.AliasNotFound(name) : TypedResults.Ok(ToResponse(alias));
     }
 
-    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IModelStore store, AliasResolver resolver, CancellationToken cancellationToken)
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(
+        string name, HttpContext context, IModelStore store, AliasResolver resolver, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
             return AliasProblems.MalformedAlias(name);
         }
 
-        bool deleted = await store.DeleteAliasAsync(name, cancellationToken);
-        resolver.Forget(name);
+        string tenant = Tenants.Of(context);
+        bool deleted = await store.DeleteAliasAsync(tenant, name, cancellationToken);
+        resolver.Forget(tenant, name);
         return deleted ? TypedResults.NoContent() : AliasProblems.AliasNotFound(name);
     }
 
@@ -119,13 +123,14 @@ public static class AliasesApi
         }
 
         // Re-pointed here: effective at once; on another instance: within Cache:AliasSeconds.
-        string? modelId = await resolver.ResolveAsync(name, services.CancellationToken);
+        string tenant = Tenants.Of(services.Request.HttpContext);
+        string? modelId = await resolver.ResolveAsync(tenant, name, services.CancellationToken);
         if (modelId is null)
         {
             return AliasProblems.AliasNotFound(name);
         }
 
-        var model = await services.Catalog.GetCompiledAsync(modelId);
+        var model = await services.Catalog.GetCompiledAsync(tenant, modelId);
         if (model is null)
         {
             return ModelProblems.ModelNotFound(modelId);
@@ -136,5 +141,5 @@ public static class AliasesApi
     }
 
     private static AliasResponse ToResponse(AliasRecord alias) =>
-        new(alias.Name, alias.ModelId, alias.UpdatedAt, alias.History.Select(h => new AliasHistoryEntry(h.ModelId, h.SetAt)).ToList());
+        new(alias.Name, alias.ModelId, alias.UpdatedAt, alias.History.Select(h => new AliasHistoryEntry(h.ModelId, h.SetAt, h.ChangedBy)).ToList());
 }

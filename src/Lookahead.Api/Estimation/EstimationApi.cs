@@ -16,6 +16,7 @@ public static class EstimationApi
         var group = routes.MapGroup("/v1/models").WithTags("Estimation").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/estimate", EstimateAsync)
+            .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("EstimateState")
             .WithSummary("One estimator sample: propagate the last estimate with the applied input, correct it with the measurement")
@@ -27,7 +28,7 @@ public static class EstimationApi
 
     public static async Task<Results<Ok<EstimateResponse>, ProblemHttpResult>> EstimateAsync(string id, [AsParameters] EstimationServices services)
     {
-        var (model, problem) = await ModelLookup.FindAsync(id, services.Catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, services.Request.HttpContext, services.Catalog);
         if (problem is not null)
         {
             return problem;

@@ -32,7 +32,7 @@ public sealed class DemoModelSeeder(
             await using var file = File.OpenRead(path);
             var document = await System.Text.Json.JsonSerializer.DeserializeAsync<ModelDocumentDto>(file, json.Value.SerializerOptions, cancellationToken)
                 ?? throw new InvalidDataException("the demo document is empty");
-            var registration = await catalog.RegisterAsync(document, cancellationToken);
+            var registration = await catalog.RegisterAsync(demo.Tenant, document, cancellationToken);
             if (!registration.Accepted)
             {
                 var reasons = string.Join("; ", registration.Errors.Select(e => $"{e.Path}: {e.Reason}"));
@@ -40,7 +40,7 @@ public sealed class DemoModelSeeder(
                 return;
             }
 
-            var alias = await store.SetAliasAsync(demo.Alias, registration.Id!, time.GetUtcNow(), cancellationToken);
+            var alias = await store.SetAliasAsync(demo.Tenant, demo.Alias, registration.Id!, time.GetUtcNow(), null, cancellationToken);
             if (logger.IsEnabled(LogLevel.Information))
             {
                 logger.LogInformation("Demo model {ModelId} registered ({Created}); alias {Alias} {AliasStatus}", registration.Id, registration.Created ? "new" : "already known", demo.Alias, alias.Status);

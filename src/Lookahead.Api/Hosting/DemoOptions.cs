@@ -16,4 +16,7 @@ public sealed class DemoOptions
     /// <summary>Relative paths are taken from the application's folder.</summary>
     [Required]
     public string DocumentPath { get; set; } = "Demo/cold-store.json";
+
+    /// <summary>The tenant the demo and its alias are registered for (Auth:Keys:N:Tenant); the default tenant when empty.</summary>
+    public string Tenant { get; set; } = "";
 }

@@ -51,6 +51,9 @@ public static class ServiceCollectionExtensions
         services.AddCatalog();
         services.AddSingleton<Aliases.AliasResolver>();
         services.AddHostedService<DemoModelSeeder>();
+        // One instance for the life of the host: it remembers whether the store was unreachable at the last probe,
+        // so an outage is logged once, not once per probe.
+        services.AddSingleton<StoreHealthCheck>();
         services.AddHealthChecks().AddCheck<StoreHealthCheck>("store", tags: ["ready"]);
         return services;
     }
@@ -77,6 +80,7 @@ public static class ServiceCollectionExtensions
         });
         services.AddOptions<DemoOptions>().BindConfiguration(DemoOptions.Section).ValidateDataAnnotations()
             .Validate(o => AliasName.IsWellFormed(o.Alias), $"Demo:Alias must match {AliasName.Pattern}")
+            .Validate(o => o.Tenant.Length == 0 || Access.Tenants.IsWellFormed(o.Tenant), $"Demo:Tenant {Access.Tenants.Rule}, or be empty for the default tenant")
             .ValidateOnStart();
 
         services.AddOptions<ShutdownOptions>().BindConfiguration(ShutdownOptions.Section).ValidateDataAnnotations().ValidateOnStart();
@@ -174,15 +178,35 @@ public static class ServiceCollectionExtensions
 
     private static void AddLookaheadRateLimiting(this IServiceCollection services)
     {
+        // Per key when the request carries one (many stations behind one proxy share an address), else per address.
+        static string Client(HttpContext context) =>
+            AccessApi.KeyId(context) is { } key ? "key:" + key : context.Connection.RemoteIpAddress?.ToString() ?? "unknown";
+
         services.AddRateLimiter(o =>
         {
             o.RejectionStatusCode = StatusCodes.Status429TooManyRequests;
+
+            // Solver work also holds one of the client's concurrency slots for as long as it runs (a replay: until its
+            // last row is written). The global limiter sees every request; only routes marked as solver work count.
+            o.GlobalLimiter = PartitionedRateLimiter.Create<HttpContext, string>(context =>
+            {
+                var settings = context.RequestServices.GetRequiredService<IOptions<RateLimitingOptions>>().Value;
+                if (settings.SolverConcurrency == 0 || context.GetEndpoint()?.Metadata.GetMetadata<SolverWork>() is null)
+                {
+                    return RateLimitPartition.GetNoLimiter("other");
+                }
+
+                return RateLimitPartition.GetConcurrencyLimiter("solver:" + Client(context), _ => new ConcurrencyLimiterOptions
+                {
+                    PermitLimit = settings.SolverConcurrency,
+                    QueueLimit = settings.SolverQueueLimit,
+                    QueueProcessingOrder = QueueProcessingOrder.OldestFirst,
+                });
+            });
             o.AddPolicy(RateLimitPolicy.Name, context =>
             {
                 var settings = context.RequestServices.GetRequiredService<IOptions<RateLimitingOptions>>().Value;
-                // Per key when the request carries one (many stations behind one proxy share an address), else per address.
-                string client = AccessApi.KeyId(context) is { } key ? "key:" + key : context.Connection.RemoteIpAddress?.ToString() ?? "unknown";
-                return RateLimitPartition.GetFixedWindowLimiter(client, _ => new FixedWindowRateLimiterOptions
+                return RateLimitPartition.GetFixedWindowLimiter(Client(context), _ => new FixedWindowRateLimiterOptions
                 {
                     PermitLimit = settings.PermitLimit,
                     Window = TimeSpan.FromSeconds(settings.WindowSeconds),
@@ -193,15 +217,18 @@ public static class ServiceCollectionExtensions
             o.OnRejected = async (context, cancellationToken) =>
             {
                 var problems = context.HttpContext.RequestServices.GetRequiredService<IProblemDetailsService>();
-                if (context.Lease.TryGetMetadata(MetadataName.RetryAfter, out var retryAfter))
-                {
-                    context.HttpContext.Response.Headers.RetryAfter = ((int)Math.Ceiling(retryAfter.TotalSeconds)).ToString(System.Globalization.CultureInfo.InvariantCulture);
-                }
 
+                // A window says when it reopens; a full set of solver slots does not, so the client is told to come back in a second.
+                bool window = context.Lease.TryGetMetadata(MetadataName.RetryAfter, out var retryAfter);
+                int seconds = window ? Math.Max(1, (int)Math.Ceiling(retryAfter.TotalSeconds)) : 1;
+                context.HttpContext.Response.Headers.RetryAfter = seconds.ToString(System.Globalization.CultureInfo.InvariantCulture);
+                string detail = window
+                    ? "This client has used its request allowance for now; retry after the interval in Retry-After."
+                    : "This client already has as many plans, replays, simulations and station steps running as it may (RateLimiting:SolverConcurrency) and as many waiting; retry after the interval in Retry-After.";
                 await problems.WriteAsync(new ProblemDetailsContext
                 {
                     HttpContext = context.HttpContext,
-                    ProblemDetails = ApiProblems.Create(StatusCodes.Status429TooManyRequests, ProblemTypes.TooManyRequests, "Too many requests", "This client has used its request allowance for now; retry after the interval in Retry-After."),
+                    ProblemDetails = ApiProblems.Create(StatusCodes.Status429TooManyRequests, ProblemTypes.TooManyRequests, "Too many requests", detail),
                 });
             };
         });

@@ -58,7 +58,7 @@ public static class ModelsApi
             return body.Problem;
         }
 
-        var registration = await catalog.RegisterAsync(body.Value!, cancellationToken);
+        var registration = await catalog.RegisterAsync(Tenants.Of(request.HttpContext), body.Value!, cancellationToken);
         if (!registration.Accepted)
         {
             return ApiProblems.Validation(registration.Errors, "The model was not registered; see errors.");
@@ -71,7 +71,8 @@ public static class ModelsApi
             : TypedResults.Ok(response);
     }
 
-    public static async Task<Results<Ok<ModelPage>, ProblemHttpResult>> ListAsync(ModelCatalog catalog, CancellationToken cancellationToken, int? offset = null, int? limit = null)
+    public static async Task<Results<Ok<ModelPage>, ProblemHttpResult>> ListAsync(
+        HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken, int? offset = null, int? limit = null)
     {
         var page = PageRequest.Read(offset, limit, out var problem);
         if (problem is not null)
@@ -80,22 +81,23 @@ public static class ModelsApi
         }
 
         var (from, size) = (page.Offset, page.Limit);
-        var listing = await catalog.ListAsync(from, size, cancellationToken);
+        var listing = await catalog.ListAsync(Tenants.Reading(context), from, size, cancellationToken);
         var items = listing.Items
             .Select(s => new ModelSummary(s.Id, s.Name, ModelResponses.Dimensions(s.States, s.Inputs, s.Outputs, s.Horizon), s.RegisteredAt))
             .ToList();
         return TypedResults.Ok(new ModelPage(items, from, size, listing.Total));
     }
 
-    public static async Task<Results<Ok<ModelDetailsResponse>, ProblemHttpResult>> GetAsync(string id, ModelCatalog catalog, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ModelDetailsResponse>, ProblemHttpResult>> GetAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
     {
         if (!ModelId.IsWellFormed(id))
         {
             return ModelProblems.MalformedId(id);
         }
 
-        var found = await catalog.GetStoredAsync(id, cancellationToken);
-        var model = found is null ? null : await catalog.GetCompiledAsync(id);
+        string? tenant = Tenants.Reading(context);
+        var found = await catalog.GetStoredAsync(tenant, id, cancellationToken);
+        var model = found is null ? null : await catalog.GetCompiledAsync(tenant, id);
         if (found is not { } stored || model is null)
         {
             return ModelProblems.ModelNotFound(id);
@@ -104,14 +106,14 @@ public static class ModelsApi
         return TypedResults.Ok(ModelResponses.Details(id, stored, model));
     }
 
-    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string id, ModelCatalog catalog, CancellationToken cancellationToken)
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
     {
         if (!ModelId.IsWellFormed(id))
         {
             return ModelProblems.MalformedId(id);
         }
 
-        var outcome = await catalog.DeleteAsync(id, cancellationToken);
+        var outcome = await catalog.DeleteAsync(Tenants.Of(context), id, cancellationToken);
         return outcome.Status switch
         {
             DeleteStatus.Deleted => TypedResults.NoContent(),
@@ -120,9 +122,9 @@ public static class ModelsApi
         };
     }
 
-    public static async Task<Results<Ok<GainResponse>, ProblemHttpResult>> GetGainAsync(string id, ModelCatalog catalog)
+    public static async Task<Results<Ok<GainResponse>, ProblemHttpResult>> GetGainAsync(string id, HttpContext context, ModelCatalog catalog)
     {
-        var (model, problem) = await ModelLookup.FindAsync(id, catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, context, catalog);
         return problem is not null ? problem : TypedResults.Ok(ModelResponses.Gain(id, model!));
     }
 }

@@ -28,7 +28,7 @@ public static class PlanEchoApi
 
     public static async Task<Results<FileContentHttpResult, ProblemHttpResult>> EchoAsync(string id, [AsParameters] PlanServices services)
     {
-        var (model, problem) = await ModelLookup.FindAsync(id, services.Catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, services.Request.HttpContext, services.Catalog);
         if (problem is not null)
         {
             return problem;

@@ -34,6 +34,7 @@ public static class PlansApi
         var group = app.MapGroup("/v1/models").WithTags("Plans").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/plan", PlanAsync)
+            .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForModel")
             .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
@@ -57,7 +58,7 @@ public static class PlansApi
             return formatProblem!;
         }
 
-        var (model, problem) = await ModelLookup.FindAsync(id, services.Catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, services.Request.HttpContext, services.Catalog);
         if (problem is not null)
         {
             return problem;

@@ -31,6 +31,7 @@ public static class ReplayApi
         var group = routes.MapGroup("/v1/models").WithTags("Replay").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/plans", ReplayAsync)
+            .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("ReplayPlans")
             .WithSummary("Plan every state of a JSON, NDJSON or CSV upload; results stream back in input order")
@@ -64,7 +65,7 @@ public static class ReplayApi
             return ApiProblems.PayloadTooLarge(limit);
         }
 
-        var (model, problem) = await ModelLookup.FindAsync(id, catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, request.HttpContext, catalog);
         if (problem is not null)
         {
             return problem;

@@ -16,6 +16,7 @@ public static class SimulationApi
         var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);
 
         group.MapPost("/{id}/simulate", SimulateAsync)
+            .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("SimulateModel")
             .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
@@ -34,7 +35,7 @@ public static class SimulationApi
             return formatProblem!;
         }
 
-        var (model, problem) = await ModelLookup.FindAsync(id, services.Catalog);
+        var (model, problem) = await ModelLookup.FindAsync(id, services.Request.HttpContext, services.Catalog);
         if (problem is not null)
         {
             return problem;

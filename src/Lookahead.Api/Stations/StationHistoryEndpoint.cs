@@ -1,3 +1,4 @@
+using Lookahead.Api.Access;
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Http;
 using Lookahead.Api.Storage;
@@ -13,6 +14,7 @@ public static class StationHistoryEndpoint
 
     public static async Task<Results<Ok<StationStepHistory>, FileContentHttpResult, ProblemHttpResult>> GetStepsAsync(
         string name,
+        HttpContext context,
         IStationStore stations,
         ModelCatalog catalog,
         RequestBodyReader reader,
@@ -43,14 +45,15 @@ public static class StationHistoryEndpoint
             return ApiProblems.Validation(errors);
         }
 
-        var station = await stations.GetStationAsync(name, cancellationToken);
+        string tenant = Tenants.Of(context);
+        var station = await stations.GetStationAsync(tenant, name, cancellationToken);
         if (station is null)
         {
             return StationProblems.NotFound(name);
         }
 
         var json = reader.SerializerOptions;
-        var logs = await stations.GetStepsAsync(name, limit ?? Math.Min(DefaultLimit, kept), cancellationToken);
+        var logs = await stations.GetStepsAsync(tenant, name, limit ?? Math.Min(DefaultLimit, kept), cancellationToken);
         var entries = logs
             .Select(s => new StationStepEntry(s.Sequence, s.SteppedAt, StationJson.Read<StationStepRequest>(s.Request, json), StationJson.Read<StationStepResponse>(s.Answer, json)))
             .ToList();
@@ -60,7 +63,7 @@ public static class StationHistoryEndpoint
         }
 
         // Columns are named from the model the station steps with now; without it (deleted), by position.
-        var model = await catalog.GetCompiledAsync(station.ModelId);
+        var model = await catalog.GetCompiledAsync(tenant, station.ModelId);
         var last = entries.Count > 0 ? entries[^1].Answer : null;
         byte[] table = model is not null
             ? StationHistoryCsv.Write(entries, model.Document.Labels, model.StateCount, model.InputCount, model.OutputCount, model.Estimator?.DisturbanceCount ?? 0)

@@ -1,6 +1,7 @@
 using System.Diagnostics;
 using System.Security.Cryptography;
 using System.Text.Json;
+using Lookahead.Api.Access;
 using Lookahead.Api.Catalog;
 using Lookahead.Api.Estimation;
 using Lookahead.Api.Http;
@@ -45,11 +46,12 @@ public static class StationStepEndpoint
 
         // The body as the service understood it, written back out: key order, spacing and number spelling do not change it.
         string hash = Convert.ToHexStringLower(SHA256.HashData(StationJson.Bytes(step, json)));
-        var gate = services.Locks.For(name);
+        string tenant = Tenants.Of(services.Request.HttpContext);
+        var gate = services.Locks.For(tenant, name);
         await gate.WaitAsync(services.CancellationToken);
         try
         {
-            var station = await services.Stations.GetStationAsync(name, services.CancellationToken);
+            var station = await services.Stations.GetStationAsync(tenant, name, services.CancellationToken);
             if (station is null)
             {
                 return StationProblems.NotFound(name);
@@ -115,7 +117,7 @@ public static class StationStepEndpoint
             // lands on the sequence and model this step was computed from.
             if (!await services.Stations.CommitStepAsync(new StationCommit(next, sequence, station.ModelId, entry, keep), services.CancellationToken))
             {
-                var current = await services.Stations.GetStationAsync(name, services.CancellationToken);
+                var current = await services.Stations.GetStationAsync(tenant, name, services.CancellationToken);
                 return current is null ? StationProblems.NotFound(name) : Repeat(current, name, sequence, hash, services);
             }
 
@@ -140,7 +142,7 @@ public static class StationStepEndpoint
         string modelId = station.ModelId;
         if (!ModelId.IsWellFormed(station.ModelReference))
         {
-            var alias = await services.Models.GetAliasAsync(station.ModelReference, services.CancellationToken);
+            var alias = await services.Models.GetAliasAsync(station.Tenant, station.ModelReference, services.CancellationToken);
             if (alias is null)
             {
                 // The loop keeps running on the tuning it had: an alias removed by mistake must not stop a plant.
@@ -153,7 +155,7 @@ public static class StationStepEndpoint
             }
         }
 
-        var model = await services.Catalog.GetCompiledAsync(modelId);
+        var model = await services.Catalog.GetCompiledAsync(station.Tenant, modelId);
         return model is null
             ? (modelId, null, ModelProblems.ModelNotFound(modelId, "model"))
             : (modelId, model, null);

@@ -64,6 +64,7 @@ public static class StationsApi
             .ProducesLookupProblems();
 
         group.MapPost("/{name}/step", StationStepEndpoint.StepAsync)
+            .IsSolverWork()
             .WithName("StepStation")
             .WithSummary("One sample: update the station's estimate with the measurement and suggest the next move")
             .Accepts<StationStepRequest>("application/json")
@@ -93,6 +94,7 @@ public static class StationsApi
             return ApiProblems.Validation("detail", $"must be '{StationDetail.FirstMove}' or '{StationDetail.Full}'");
         }
 
+        string tenant = Tenants.Of(services.Request.HttpContext);
         string? modelId;
         if (reference is null)
         {
@@ -104,7 +106,7 @@ public static class StationsApi
         }
         else if (AliasName.IsWellFormed(reference))
         {
-            modelId = (await services.Models.GetAliasAsync(reference, services.CancellationToken))?.ModelId;
+            modelId = (await services.Models.GetAliasAsync(tenant, reference, services.CancellationToken))?.ModelId;
             if (modelId is null)
             {
                 return ApiProblems.Validation("model", $"no alias named '{reference}' exists");
@@ -115,7 +117,7 @@ public static class StationsApi
             return ApiProblems.Validation("model", "is neither a model id (64 lower-case hexadecimal digits) nor an alias name");
         }
 
-        var model = await services.Catalog.GetCompiledAsync(modelId);
+        var model = await services.Catalog.GetCompiledAsync(tenant, modelId);
         if (model is null)
         {
             return ApiProblems.Validation("model", $"no model with id {modelId} is registered");
@@ -126,13 +128,14 @@ public static class StationsApi
             return ApiProblems.Validation("model", "the model has no estimator: a station estimates from measurements, so register the model with one");
         }
 
-        var record = new StationRecord(name, reference, modelId, detail, 0, 0, null, null, null, null, null, null, services.Time.GetUtcNow());
+        var record = new StationRecord(name, reference, modelId, detail, 0, 0, null, null, null, null, null, null, services.Time.GetUtcNow()) { Tenant = tenant };
         bool created = await services.Stations.PutStationAsync(record, services.CancellationToken);
         var response = ToResponse(record, services.Reader.SerializerOptions);
         return created ? TypedResults.Created($"/v1/stations/{name}", response) : TypedResults.Ok(response);
     }
 
     public static async Task<Results<Ok<StationPage>, ProblemHttpResult>> ListAsync(
+        HttpContext context,
         IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken, int? offset = null, int? limit = null)
     {
         var page = PageRequest.Read(offset, limit, out var problem);
@@ -142,30 +145,31 @@ public static class StationsApi
         }
 
         var (from, size) = (page.Offset, page.Limit);
-        var listing = await stations.ListStationsAsync(from, size, cancellationToken);
+        var listing = await stations.ListStationsAsync(Tenants.Of(context), from, size, cancellationToken);
         var items = listing.Items.Select(s => ToResponse(s, reader.SerializerOptions)).ToList();
         return TypedResults.Ok(new StationPage(items, from, size, listing.Total));
     }
 
-    public static async Task<Results<Ok<StationResponse>, ProblemHttpResult>> GetAsync(string name, IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<StationResponse>, ProblemHttpResult>> GetAsync(
+        string name, HttpContext context, IStationStore stations, RequestBodyReader reader, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
             return StationProblems.MalformedName(name);
         }
 
-        var station = await stations.GetStationAsync(name, cancellationToken);
+        var station = await stations.GetStationAsync(Tenants.Of(context), name, cancellationToken);
         return station is null ? StationProblems.NotFound(name) : TypedResults.Ok(ToResponse(station, reader.SerializerOptions));
     }
 
-    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, IStationStore stations, CancellationToken cancellationToken)
+    public static async Task<Results<NoContent, ProblemHttpResult>> DeleteAsync(string name, HttpContext context, IStationStore stations, CancellationToken cancellationToken)
     {
         if (!AliasName.IsWellFormed(name))
         {
             return StationProblems.MalformedName(name);
         }
 
-        return await stations.DeleteStationAsync(name, cancellationToken) ? TypedResults.NoContent() : StationProblems.NotFound(name);
+        return await stations.DeleteStationAsync(Tenants.Of(context), name, cancellationToken) ? TypedResults.NoContent() : StationProblems.NotFound(name);
     }
 
     private static StationResponse ToResponse(StationRecord s, JsonSerializerOptions json) => new(

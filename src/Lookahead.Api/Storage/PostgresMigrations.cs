@@ -63,5 +63,33 @@ internal static class PostgresMigrations
                 answer text NOT NULL,
                 PRIMARY KEY (name, sequence));
             """),
+        // Tenants: a model's content is stored once, and each tenant that registered it owns it (its own registration
+        // time and listing order); aliases and stations are named within a tenant; alias changes record the key that
+        // made them. Everything already stored belongs to the default tenant ('').
+        new(4, "tenants, model ownership and who changed an alias", """
+            CREATE TABLE model_owners (
+                seq bigserial PRIMARY KEY,
+                tenant text NOT NULL,
+                model_id text NOT NULL REFERENCES models (id),
+                registered_at bigint NOT NULL,
+                UNIQUE (tenant, model_id));
+            CREATE INDEX model_owners_model ON model_owners (model_id);
+            INSERT INTO model_owners (tenant, model_id, registered_at) SELECT '', id, registered_at FROM models ORDER BY seq;
+
+            ALTER TABLE aliases ADD COLUMN tenant text NOT NULL DEFAULT '';
+            ALTER TABLE aliases DROP CONSTRAINT aliases_pkey;
+            ALTER TABLE aliases ADD PRIMARY KEY (tenant, name);
+            ALTER TABLE alias_history ADD COLUMN tenant text NOT NULL DEFAULT '';
+            ALTER TABLE alias_history ADD COLUMN changed_by text;
+            DROP INDEX alias_history_name;
+            CREATE INDEX alias_history_name ON alias_history (tenant, name, seq);
+
+            ALTER TABLE stations ADD COLUMN tenant text NOT NULL DEFAULT '';
+            ALTER TABLE stations DROP CONSTRAINT stations_pkey;
+            ALTER TABLE stations ADD PRIMARY KEY (tenant, name);
+            ALTER TABLE station_steps ADD COLUMN tenant text NOT NULL DEFAULT '';
+            ALTER TABLE station_steps DROP CONSTRAINT station_steps_pkey;
+            ALTER TABLE station_steps ADD PRIMARY KEY (tenant, name, sequence);
+            """),
     ]);
 }

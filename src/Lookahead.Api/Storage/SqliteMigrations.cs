@@ -61,5 +61,70 @@ internal static class SqliteMigrations
                 answer TEXT NOT NULL,
                 PRIMARY KEY (name, sequence)) WITHOUT ROWID;
             """),
+        // Tenants: a model's content is stored once, and each tenant that registered it owns it (its own registration
+        // time and listing order); aliases and stations are named within a tenant; alias changes record the key that
+        // made them. Everything already stored belongs to the default tenant (''). SQLite cannot change a primary
+        // key in place, so aliases, stations and their steps are copied into new tables.
+        new(4, "tenants, model ownership and who changed an alias", """
+            CREATE TABLE model_owners (
+                seq INTEGER PRIMARY KEY AUTOINCREMENT,
+                tenant TEXT NOT NULL,
+                model_id TEXT NOT NULL REFERENCES models(id),
+                registered_at INTEGER NOT NULL,
+                UNIQUE (tenant, model_id));
+            CREATE INDEX model_owners_model ON model_owners(model_id);
+            INSERT INTO model_owners (tenant, model_id, registered_at) SELECT '', id, registered_at FROM models ORDER BY seq;
+
+            CREATE TABLE aliases_by_tenant (
+                tenant TEXT NOT NULL,
+                name TEXT NOT NULL,
+                model_id TEXT NOT NULL REFERENCES models(id),
+                updated_at INTEGER NOT NULL,
+                PRIMARY KEY (tenant, name));
+            INSERT INTO aliases_by_tenant (tenant, name, model_id, updated_at) SELECT '', name, model_id, updated_at FROM aliases;
+            DROP TABLE aliases;
+            ALTER TABLE aliases_by_tenant RENAME TO aliases;
+            CREATE INDEX aliases_model ON aliases(model_id);
+            ALTER TABLE alias_history ADD COLUMN tenant TEXT NOT NULL DEFAULT '';
+            ALTER TABLE alias_history ADD COLUMN changed_by TEXT;
+            DROP INDEX alias_history_name;
+            CREATE INDEX alias_history_name ON alias_history(tenant, name, seq);
+
+            CREATE TABLE stations_by_tenant (
+                tenant TEXT NOT NULL,
+                name TEXT NOT NULL,
+                model_reference TEXT NOT NULL,
+                model_id TEXT NOT NULL,
+                sequence INTEGER NOT NULL,
+                step_count INTEGER NOT NULL,
+                estimate TEXT,
+                last_applied_input TEXT,
+                last_first_move TEXT,
+                last_request_hash TEXT,
+                last_answer TEXT,
+                updated_at INTEGER NOT NULL,
+                detail TEXT NOT NULL DEFAULT 'first-move',
+                last_timestamp INTEGER,
+                PRIMARY KEY (tenant, name));
+            INSERT INTO stations_by_tenant (tenant, name, model_reference, model_id, sequence, step_count, estimate, last_applied_input,
+                    last_first_move, last_request_hash, last_answer, updated_at, detail, last_timestamp)
+                SELECT '', name, model_reference, model_id, sequence, step_count, estimate, last_applied_input,
+                    last_first_move, last_request_hash, last_answer, updated_at, detail, last_timestamp FROM stations;
+            DROP TABLE stations;
+            ALTER TABLE stations_by_tenant RENAME TO stations;
+
+            CREATE TABLE station_steps_by_tenant (
+                tenant TEXT NOT NULL,
+                name TEXT NOT NULL,
+                sequence INTEGER NOT NULL,
+                stepped_at INTEGER NOT NULL,
+                request TEXT NOT NULL,
+                answer TEXT NOT NULL,
+                PRIMARY KEY (tenant, name, sequence)) WITHOUT ROWID;
+            INSERT INTO station_steps_by_tenant (tenant, name, sequence, stepped_at, request, answer)
+                SELECT '', name, sequence, stepped_at, request, answer FROM station_steps;
+            DROP TABLE station_steps;
+            ALTER TABLE station_steps_by_tenant RENAME TO station_steps;
+            """),
     ]);
 }

@@ -11,13 +11,14 @@ public sealed partial class SqliteModelStore : IStationStore
 
         // BEGIN IMMEDIATE: whether the name existed, the write and the cleared history are one decision.
         await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
-        bool existed = await ScalarAsync<string>(connection, transaction, "SELECT name FROM stations WHERE name = $name", ("$name", station.Name), cancellationToken) is not null;
+        bool existed = await ScalarAsync<string>(
+            connection, transaction, "SELECT name FROM stations WHERE tenant = $tenant AND name = $name", [("$tenant", station.Tenant), ("$name", station.Name)], cancellationToken) is not null;
         await using var command = connection.CreateCommand();
         command.Transaction = transaction;
         command.CommandText = $"""
             INSERT OR REPLACE INTO stations ({StationRecord.Columns})
-            VALUES ($name, $reference, $model, $detail, $sequence, $steps, $estimate, $applied, $move, $hash, $answer, $timestamp, $at);
-            DELETE FROM station_steps WHERE name = $name;
+            VALUES ($name, $reference, $model, $detail, $sequence, $steps, $estimate, $applied, $move, $hash, $answer, $timestamp, $at, $tenant);
+            DELETE FROM station_steps WHERE tenant = $tenant AND name = $name;
             """;
         AddStation(command, station);
         await command.ExecuteNonQueryAsync(cancellationToken);
@@ -25,24 +26,31 @@ public sealed partial class SqliteModelStore : IStationStore
         return !existed;
     }
 
-    public async Task<StationRecord?> GetStationAsync(string name, CancellationToken cancellationToken)
+    public async Task<StationRecord?> GetStationAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = $"SELECT {StationRecord.Columns} FROM stations WHERE name = $name";
+        command.CommandText = $"SELECT {StationRecord.Columns} FROM stations WHERE tenant = $tenant AND name = $name";
+        command.Parameters.AddWithValue("$tenant", tenant);
         command.Parameters.AddWithValue("$name", name);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
         return await reader.ReadAsync(cancellationToken) ? StationRecord.Read(reader) : null;
     }
 
-    public async Task<StationListing> ListStationsAsync(int offset, int limit, CancellationToken cancellationToken)
+    public async Task<StationListing> ListStationsAsync(string? tenant, int offset, int limit, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = $"""
-            SELECT {StationRecord.Columns} FROM stations ORDER BY name LIMIT $limit OFFSET $offset;
-            SELECT COUNT(*) FROM stations;
-            """;
+        command.CommandText = tenant is null
+            ? $"""
+               SELECT {StationRecord.Columns} FROM stations ORDER BY tenant, name LIMIT $limit OFFSET $offset;
+               SELECT COUNT(*) FROM stations;
+               """
+            : $"""
+               SELECT {StationRecord.Columns} FROM stations WHERE tenant = $tenant ORDER BY name LIMIT $limit OFFSET $offset;
+               SELECT COUNT(*) FROM stations WHERE tenant = $tenant;
+               """;
+        command.Parameters.AddWithValue("$tenant", (object?)tenant ?? DBNull.Value);
         command.Parameters.AddWithValue("$limit", limit);
         command.Parameters.AddWithValue("$offset", offset);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
@@ -57,12 +65,12 @@ public sealed partial class SqliteModelStore : IStationStore
         return new StationListing(items, reader.GetInt64(0));
     }
 
-    public async Task<bool> DeleteStationAsync(string name, CancellationToken cancellationToken)
+    public async Task<bool> DeleteStationAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
-        bool deleted = await ExecuteAsync(connection, transaction, "DELETE FROM stations WHERE name = $name", name, cancellationToken) == 1;
-        await ExecuteAsync(connection, transaction, "DELETE FROM station_steps WHERE name = $name", name, cancellationToken);
+        bool deleted = await ExecuteAsync(connection, transaction, "DELETE FROM stations WHERE tenant = $tenant AND name = $name", tenant, name, cancellationToken) == 1;
+        await ExecuteAsync(connection, transaction, "DELETE FROM station_steps WHERE tenant = $tenant AND name = $name", tenant, name, cancellationToken);
         await transaction.CommitAsync(cancellationToken);
         return deleted;
     }
@@ -70,11 +78,12 @@ public sealed partial class SqliteModelStore : IStationStore
     /// <summary>Through the store's one step writer: steps arriving together share a transaction and its fsync.</summary>
     public Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken) => StepWriter.CommitAsync(commit);
 
-    public async Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken)
+    public async Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string tenant, string name, int limit, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = $"SELECT {StationStepLog.Columns} FROM station_steps WHERE name = $name ORDER BY sequence DESC LIMIT $limit";
+        command.CommandText = $"SELECT {StationStepLog.Columns} FROM station_steps WHERE tenant = $tenant AND name = $name ORDER BY sequence DESC LIMIT $limit";
+        command.Parameters.AddWithValue("$tenant", tenant);
         command.Parameters.AddWithValue("$name", name);
         command.Parameters.AddWithValue("$limit", limit);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
@@ -90,6 +99,7 @@ public sealed partial class SqliteModelStore : IStationStore
 
     internal static void AddStation(SqliteCommand command, StationRecord s)
     {
+        command.Parameters.AddWithValue("$tenant", s.Tenant);
         command.Parameters.AddWithValue("$name", s.Name);
         command.Parameters.AddWithValue("$reference", s.ModelReference);
         command.Parameters.AddWithValue("$model", s.ModelId);

@@ -41,16 +41,22 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
 
     public string FilePath { get; }
 
-    public async Task<PutOutcome> PutIfAbsentAsync(StoredModel model, CancellationToken cancellationToken)
+    public async Task<PutOutcome> PutIfAbsentAsync(string tenant, StoredModel model, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
+        await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
         await using var command = connection.CreateCommand();
+        command.Transaction = transaction;
         command.CommandText = """
             INSERT INTO models (id, name, document, states, inputs, outputs, horizon, registered_at)
             VALUES ($id, $name, $document, $states, $inputs, $outputs, $horizon, $at)
-            ON CONFLICT (id) DO NOTHING
+            ON CONFLICT (id) DO NOTHING;
+            INSERT INTO model_owners (tenant, model_id, registered_at) VALUES ($tenant, $id, $at)
+            ON CONFLICT (tenant, model_id) DO NOTHING;
+            SELECT changes();
             """;
         var s = model.Summary;
+        command.Parameters.AddWithValue("$tenant", tenant);
         command.Parameters.AddWithValue("$id", s.Id);
         command.Parameters.AddWithValue("$name", (object?)s.Name ?? DBNull.Value);
         command.Parameters.AddWithValue("$document", model.Document);
@@ -59,16 +65,25 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         command.Parameters.AddWithValue("$outputs", s.Outputs);
         command.Parameters.AddWithValue("$horizon", s.Horizon);
         command.Parameters.AddWithValue("$at", StoreTime.ToStored(s.RegisteredAt));
-        int inserted = await command.ExecuteNonQueryAsync(cancellationToken);
-        return inserted == 1 ? PutOutcome.Created : PutOutcome.Existing;
+
+        // changes() after the second insert: whether this tenant became an owner, whoever held the content before.
+        long owned = (long)(await command.ExecuteScalarAsync(cancellationToken))!;
+        await transaction.CommitAsync(cancellationToken);
+        return owned == 1 ? PutOutcome.Created : PutOutcome.Existing;
     }
 
-    public async Task<StoredModel?> GetAsync(string id, CancellationToken cancellationToken)
+    public async Task<StoredModel?> GetAsync(string? tenant, string id, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = "SELECT id, name, states, inputs, outputs, horizon, registered_at, document FROM models WHERE id = $id";
+        command.CommandText = tenant is null
+            ? "SELECT id, name, states, inputs, outputs, horizon, registered_at, document FROM models WHERE id = $id"
+            : """
+              SELECT m.id, m.name, m.states, m.inputs, m.outputs, m.horizon, o.registered_at, m.document
+              FROM model_owners o JOIN models m ON m.id = o.model_id WHERE o.tenant = $tenant AND o.model_id = $id
+              """;
         command.Parameters.AddWithValue("$id", id);
+        command.Parameters.AddWithValue("$tenant", (object?)tenant ?? DBNull.Value);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
         if (!await reader.ReadAsync(cancellationToken))
         {
@@ -78,14 +93,21 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         return new StoredModel(StoredModelSummary.Read(reader), (byte[])reader.GetValue(7));
     }
 
-    public async Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken)
+    public async Task<ModelListing> ListAsync(string? tenant, int offset, int limit, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var command = connection.CreateCommand();
-        command.CommandText = """
-            SELECT id, name, states, inputs, outputs, horizon, registered_at FROM models ORDER BY seq LIMIT $limit OFFSET $offset;
-            SELECT COUNT(*) FROM models;
-            """;
+        command.CommandText = tenant is null
+            ? """
+              SELECT id, name, states, inputs, outputs, horizon, registered_at FROM models ORDER BY seq LIMIT $limit OFFSET $offset;
+              SELECT COUNT(*) FROM models;
+              """
+            : """
+              SELECT m.id, m.name, m.states, m.inputs, m.outputs, m.horizon, o.registered_at
+              FROM model_owners o JOIN models m ON m.id = o.model_id WHERE o.tenant = $tenant ORDER BY o.seq LIMIT $limit OFFSET $offset;
+              SELECT COUNT(*) FROM model_owners WHERE tenant = $tenant;
+              """;
+        command.Parameters.AddWithValue("$tenant", (object?)tenant ?? DBNull.Value);
         command.Parameters.AddWithValue("$limit", limit);
         command.Parameters.AddWithValue("$offset", offset);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
@@ -100,86 +122,102 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         return new ModelListing(items, reader.GetInt64(0));
     }
 
-    public async Task<DeleteOutcome> DeleteAsync(string id, CancellationToken cancellationToken)
+    public async Task<DeleteOutcome> DeleteAsync(string tenant, string id, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
-        string? alias = await ScalarAsync<string>(connection, transaction, "SELECT name FROM aliases WHERE model_id = $id ORDER BY name LIMIT 1", ("$id", id), cancellationToken);
+        string? alias = await ScalarAsync<string>(
+            connection, transaction, "SELECT name FROM aliases WHERE tenant = $tenant AND model_id = $id ORDER BY name LIMIT 1", [("$tenant", tenant), ("$id", id)], cancellationToken);
         if (alias is not null)
         {
             return new DeleteOutcome(DeleteStatus.ReferencedByAlias, alias);
         }
 
-        await using var command = connection.CreateCommand();
-        command.Transaction = transaction;
-        command.CommandText = "DELETE FROM models WHERE id = $id";
-        command.Parameters.AddWithValue("$id", id);
-        int deleted = await command.ExecuteNonQueryAsync(cancellationToken);
+        (string, object)[] owner = [("$tenant", tenant), ("$id", id)];
+        int deleted = await ExecuteAsync(connection, transaction, "DELETE FROM model_owners WHERE tenant = $tenant AND model_id = $id", owner, cancellationToken);
+
+        // The content goes with its last owner.
+        await ExecuteAsync(
+            connection,
+            transaction,
+            "DELETE FROM models WHERE id = $id AND NOT EXISTS (SELECT 1 FROM model_owners WHERE model_id = $id) AND NOT EXISTS (SELECT 1 FROM aliases WHERE model_id = $id)",
+            owner,
+            cancellationToken);
         await transaction.CommitAsync(cancellationToken);
         return deleted == 1 ? DeleteOutcome.Deleted : DeleteOutcome.NotFound;
     }
 
-    public async Task<AliasOutcome> SetAliasAsync(string name, string modelId, DateTimeOffset at, CancellationToken cancellationToken)
+    public async Task<AliasOutcome> SetAliasAsync(string tenant, string name, string modelId, DateTimeOffset at, string? changedBy, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
 
-        // BEGIN IMMEDIATE: the existence check and the write see the same database.
+        // BEGIN IMMEDIATE: the ownership check and the write see the same database.
         await using (var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken))
         {
-            if (await ScalarAsync<string>(connection, transaction, "SELECT id FROM models WHERE id = $id", ("$id", modelId), cancellationToken) is null)
+            (string, object)[] key = [("$tenant", tenant), ("$name", name)];
+            if (await ScalarAsync<string>(connection, transaction, "SELECT model_id FROM model_owners WHERE tenant = $tenant AND model_id = $id", [("$tenant", tenant), ("$id", modelId)], cancellationToken) is null)
             {
                 return new AliasOutcome(AliasStatus.ModelNotFound, null);
             }
 
-            string? current = await ScalarAsync<string>(connection, transaction, "SELECT model_id FROM aliases WHERE name = $name", ("$name", name), cancellationToken);
+            string? current = await ScalarAsync<string>(connection, transaction, "SELECT model_id FROM aliases WHERE tenant = $tenant AND name = $name", key, cancellationToken);
             if (current == modelId)
             {
                 await transaction.RollbackAsync(cancellationToken);
-                return new AliasOutcome(AliasStatus.Unchanged, await ReadAliasAsync(connection, name, cancellationToken));
+                return new AliasOutcome(AliasStatus.Unchanged, await ReadAliasAsync(connection, tenant, name, cancellationToken));
             }
 
             // The caller read the clock before it queued for the write lock, so a change that waited may carry an
             // earlier time than the one before it: clamped, the history read in write order is also in time order.
-            long previous = await ScalarAsync<long?>(connection, transaction, "SELECT MAX(set_at) FROM alias_history WHERE name = $name", ("$name", name), cancellationToken) ?? long.MinValue;
+            long previous = await ScalarAsync<long?>(connection, transaction, "SELECT MAX(set_at) FROM alias_history WHERE tenant = $tenant AND name = $name", key, cancellationToken) ?? long.MinValue;
             await using var command = connection.CreateCommand();
             command.Transaction = transaction;
             command.CommandText = """
-                INSERT INTO aliases (name, model_id, updated_at) VALUES ($name, $id, $at)
-                ON CONFLICT (name) DO UPDATE SET model_id = excluded.model_id, updated_at = excluded.updated_at;
-                INSERT INTO alias_history (name, model_id, set_at) VALUES ($name, $id, $at);
+                INSERT INTO aliases (tenant, name, model_id, updated_at) VALUES ($tenant, $name, $id, $at)
+                ON CONFLICT (tenant, name) DO UPDATE SET model_id = excluded.model_id, updated_at = excluded.updated_at;
+                INSERT INTO alias_history (tenant, name, model_id, set_at, changed_by) VALUES ($tenant, $name, $id, $at, $by);
                 """;
+            command.Parameters.AddWithValue("$tenant", tenant);
             command.Parameters.AddWithValue("$name", name);
             command.Parameters.AddWithValue("$id", modelId);
             command.Parameters.AddWithValue("$at", Math.Max(StoreTime.ToStored(at), previous));
+            command.Parameters.AddWithValue("$by", (object?)changedBy ?? DBNull.Value);
             await command.ExecuteNonQueryAsync(cancellationToken);
             await transaction.CommitAsync(cancellationToken);
             var status = current is null ? AliasStatus.Created : AliasStatus.Updated;
-            return new AliasOutcome(status, await ReadAliasAsync(connection, name, cancellationToken));
+            return new AliasOutcome(status, await ReadAliasAsync(connection, tenant, name, cancellationToken));
         }
     }
 
-    public async Task<AliasRecord?> GetAliasAsync(string name, CancellationToken cancellationToken)
+    public async Task<AliasRecord?> GetAliasAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
-        return await ReadAliasAsync(connection, name, cancellationToken);
+        return await ReadAliasAsync(connection, tenant, name, cancellationToken);
     }
 
-    public async Task<bool> DeleteAliasAsync(string name, CancellationToken cancellationToken)
+    public async Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
         await using var transaction = (SqliteTransaction)await connection.BeginTransactionAsync(cancellationToken);
-        int deleted = await ExecuteAsync(connection, transaction, "DELETE FROM aliases WHERE name = $name", name, cancellationToken);
-        await ExecuteAsync(connection, transaction, "DELETE FROM alias_history WHERE name = $name", name, cancellationToken);
+        int deleted = await ExecuteAsync(connection, transaction, "DELETE FROM aliases WHERE tenant = $tenant AND name = $name", tenant, name, cancellationToken);
+        await ExecuteAsync(connection, transaction, "DELETE FROM alias_history WHERE tenant = $tenant AND name = $name", tenant, name, cancellationToken);
         await transaction.CommitAsync(cancellationToken);
         return deleted == 1;
     }
 
-    private static async Task<int> ExecuteAsync(SqliteConnection connection, SqliteTransaction transaction, string sql, string name, CancellationToken cancellationToken)
+    private static Task<int> ExecuteAsync(SqliteConnection connection, SqliteTransaction transaction, string sql, string tenant, string name, CancellationToken cancellationToken) =>
+        ExecuteAsync(connection, transaction, sql, [("$tenant", tenant), ("$name", name)], cancellationToken);
+
+    private static async Task<int> ExecuteAsync(SqliteConnection connection, SqliteTransaction transaction, string sql, (string Name, object Value)[] parameters, CancellationToken cancellationToken)
     {
         await using var command = connection.CreateCommand();
         command.Transaction = transaction;
         command.CommandText = sql;
-        command.Parameters.AddWithValue("$name", name);
+        foreach (var (name, value) in parameters)
+        {
+            command.Parameters.AddWithValue(name, value);
+        }
+
         return await command.ExecuteNonQueryAsync(cancellationToken);
     }
 
@@ -236,16 +274,17 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
     public async Task PingAsync(CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);
-        await ScalarAsync<long>(connection, null, "SELECT COUNT(*) FROM models", null, cancellationToken);
+        await ScalarAsync<long>(connection, null, "SELECT COUNT(*) FROM models", [], cancellationToken);
     }
 
-    private static async Task<AliasRecord?> ReadAliasAsync(SqliteConnection connection, string name, CancellationToken cancellationToken)
+    private static async Task<AliasRecord?> ReadAliasAsync(SqliteConnection connection, string tenant, string name, CancellationToken cancellationToken)
     {
         await using var command = connection.CreateCommand();
         command.CommandText = """
-            SELECT model_id, updated_at FROM aliases WHERE name = $name;
-            SELECT model_id, set_at FROM alias_history WHERE name = $name ORDER BY seq;
+            SELECT model_id, updated_at FROM aliases WHERE tenant = $tenant AND name = $name;
+            SELECT model_id, set_at, changed_by FROM alias_history WHERE tenant = $tenant AND name = $name ORDER BY seq;
             """;
+        command.Parameters.AddWithValue("$tenant", tenant);
         command.Parameters.AddWithValue("$name", name);
         await using var reader = await command.ExecuteReaderAsync(cancellationToken);
         if (!await reader.ReadAsync(cancellationToken))
@@ -259,24 +298,24 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         var history = new List<AliasChange>();
         while (await reader.ReadAsync(cancellationToken))
         {
-            history.Add(new AliasChange(reader.GetString(0), StoreTime.FromStored(reader.GetInt64(1))));
+            history.Add(new AliasChange(reader.GetString(0), StoreTime.FromStored(reader.GetInt64(1)), reader.IsDBNull(2) ? null : reader.GetString(2)));
         }
 
         return new AliasRecord(name, modelId, updatedAt, history);
     }
 
-    private static async Task<T?> ScalarAsync<T>(SqliteConnection connection, SqliteTransaction? transaction, string sql, (string Name, object Value)? parameter, CancellationToken cancellationToken)
+    private static async Task<T?> ScalarAsync<T>(SqliteConnection connection, SqliteTransaction? transaction, string sql, (string Name, object Value)[] parameters, CancellationToken cancellationToken)
     {
         await using var command = connection.CreateCommand();
         command.Transaction = transaction;
         command.CommandText = sql;
-        if (parameter is { } p)
+        foreach (var (name, value) in parameters)
         {
-            command.Parameters.AddWithValue(p.Name, p.Value);
+            command.Parameters.AddWithValue(name, value);
         }
 
-        object? value = await command.ExecuteScalarAsync(cancellationToken);
-        return value is null or DBNull ? default : (T)value;
+        object? scalar = await command.ExecuteScalarAsync(cancellationToken);
+        return scalar is null or DBNull ? default : (T)scalar;
     }
 
     private async Task<SqliteConnection> OpenAsync(CancellationToken cancellationToken)

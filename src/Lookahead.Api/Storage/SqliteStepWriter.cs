@@ -104,14 +104,14 @@ internal sealed class SqliteStepWriter : IAsyncDisposable
             UPDATE stations SET model_id = $model, sequence = $sequence, step_count = $steps, estimate = $estimate,
                 last_applied_input = $applied, last_first_move = $move, last_request_hash = $hash, last_answer = $answer,
                 last_timestamp = $timestamp, updated_at = $at
-            WHERE name = $name AND sequence = $expected AND model_id = $expectedModel AND model_reference = $reference
+            WHERE tenant = $tenant AND name = $name AND sequence = $expected AND model_id = $expectedModel AND model_reference = $reference
                 AND detail = $detail
             """;
         using var log = connection.CreateCommand();
         log.Transaction = transaction;
         log.CommandText = """
-            INSERT OR REPLACE INTO station_steps (name, sequence, stepped_at, request, answer) VALUES ($name, $sequence, $at, $request, $answer);
-            DELETE FROM station_steps WHERE name = $name AND sequence <= $sequence - $keep;
+            INSERT OR REPLACE INTO station_steps (tenant, name, sequence, stepped_at, request, answer) VALUES ($tenant, $name, $sequence, $at, $request, $answer);
+            DELETE FROM station_steps WHERE tenant = $tenant AND name = $name AND sequence <= $sequence - $keep;
             """;
         for (int i = 0; i < group.Count; i++)
         {
@@ -124,6 +124,7 @@ internal sealed class SqliteStepWriter : IAsyncDisposable
             if (written[i] && commit.Entry is { } entry)
             {
                 log.Parameters.Clear();
+                log.Parameters.AddWithValue("$tenant", commit.Next.Tenant);
                 log.Parameters.AddWithValue("$name", entry.Name);
                 log.Parameters.AddWithValue("$sequence", entry.Sequence);
                 log.Parameters.AddWithValue("$at", StoreTime.ToStored(entry.SteppedAt));

@@ -35,9 +35,12 @@ public sealed record StationRecord(
     DateTimeOffset? LastTimestamp,
     DateTimeOffset UpdatedAt)
 {
+    /// <summary>The tenant the station's name belongs to (the default tenant is the empty string).</summary>
+    public string Tenant { get; init; } = "";
+
     /// <summary>The columns <see cref="Read"/> expects, in its order (both stores select them so).</summary>
     internal const string Columns =
-        "name, model_reference, model_id, detail, sequence, step_count, estimate, last_applied_input, last_first_move, last_request_hash, last_answer, last_timestamp, updated_at";
+        "name, model_reference, model_id, detail, sequence, step_count, estimate, last_applied_input, last_first_move, last_request_hash, last_answer, last_timestamp, updated_at, tenant";
 
     internal static StationRecord Read(DbDataReader reader)
     {
@@ -55,7 +58,10 @@ public sealed record StationRecord(
             Text(9),
             Text(10),
             reader.IsDBNull(11) ? null : StoreTime.FromTicks(reader.GetInt64(11)),
-            StoreTime.FromStored(reader.GetInt64(12)));
+            StoreTime.FromStored(reader.GetInt64(12)))
+        {
+            Tenant = reader.GetString(13),
+        };
     }
 }
 

@@ -15,19 +15,22 @@ public sealed class StoreFaultBoundary(IModelStore inner) : IModelStore, IStatio
 
     public IModelStore Inner => inner;
 
-    public Task<PutOutcome> PutIfAbsentAsync(StoredModel model, CancellationToken cancellationToken) => GuardAsync(() => inner.PutIfAbsentAsync(model, cancellationToken));
+    public Task<PutOutcome> PutIfAbsentAsync(string tenant, StoredModel model, CancellationToken cancellationToken) =>
+        GuardAsync(() => inner.PutIfAbsentAsync(tenant, model, cancellationToken));
 
-    public Task<StoredModel?> GetAsync(string id, CancellationToken cancellationToken) => GuardAsync(() => inner.GetAsync(id, cancellationToken));
+    public Task<StoredModel?> GetAsync(string? tenant, string id, CancellationToken cancellationToken) => GuardAsync(() => inner.GetAsync(tenant, id, cancellationToken));
 
-    public Task<ModelListing> ListAsync(int offset, int limit, CancellationToken cancellationToken) => GuardAsync(() => inner.ListAsync(offset, limit, cancellationToken));
+    public Task<ModelListing> ListAsync(string? tenant, int offset, int limit, CancellationToken cancellationToken) =>
+        GuardAsync(() => inner.ListAsync(tenant, offset, limit, cancellationToken));
 
-    public Task<DeleteOutcome> DeleteAsync(string id, CancellationToken cancellationToken) => GuardAsync(() => inner.DeleteAsync(id, cancellationToken));
+    public Task<DeleteOutcome> DeleteAsync(string tenant, string id, CancellationToken cancellationToken) => GuardAsync(() => inner.DeleteAsync(tenant, id, cancellationToken));
 
-    public Task<AliasOutcome> SetAliasAsync(string name, string modelId, DateTimeOffset at, CancellationToken cancellationToken) => GuardAsync(() => inner.SetAliasAsync(name, modelId, at, cancellationToken));
+    public Task<AliasOutcome> SetAliasAsync(string tenant, string name, string modelId, DateTimeOffset at, string? changedBy, CancellationToken cancellationToken) =>
+        GuardAsync(() => inner.SetAliasAsync(tenant, name, modelId, at, changedBy, cancellationToken));
 
-    public Task<AliasRecord?> GetAliasAsync(string name, CancellationToken cancellationToken) => GuardAsync(() => inner.GetAliasAsync(name, cancellationToken));
+    public Task<AliasRecord?> GetAliasAsync(string tenant, string name, CancellationToken cancellationToken) => GuardAsync(() => inner.GetAliasAsync(tenant, name, cancellationToken));
 
-    public Task<bool> DeleteAliasAsync(string name, CancellationToken cancellationToken) => GuardAsync(() => inner.DeleteAliasAsync(name, cancellationToken));
+    public Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken) => GuardAsync(() => inner.DeleteAliasAsync(tenant, name, cancellationToken));
 
     public Task PingAsync(CancellationToken cancellationToken) => GuardAsync(async () =>
     {
@@ -37,15 +40,19 @@ public sealed class StoreFaultBoundary(IModelStore inner) : IModelStore, IStatio
 
     public Task<bool> PutStationAsync(StationRecord station, CancellationToken cancellationToken) => GuardAsync(() => stations.PutStationAsync(station, cancellationToken));
 
-    public Task<StationRecord?> GetStationAsync(string name, CancellationToken cancellationToken) => GuardAsync(() => stations.GetStationAsync(name, cancellationToken));
+    public Task<StationRecord?> GetStationAsync(string tenant, string name, CancellationToken cancellationToken) =>
+        GuardAsync(() => stations.GetStationAsync(tenant, name, cancellationToken));
 
-    public Task<StationListing> ListStationsAsync(int offset, int limit, CancellationToken cancellationToken) => GuardAsync(() => stations.ListStationsAsync(offset, limit, cancellationToken));
+    public Task<StationListing> ListStationsAsync(string? tenant, int offset, int limit, CancellationToken cancellationToken) =>
+        GuardAsync(() => stations.ListStationsAsync(tenant, offset, limit, cancellationToken));
 
-    public Task<bool> DeleteStationAsync(string name, CancellationToken cancellationToken) => GuardAsync(() => stations.DeleteStationAsync(name, cancellationToken));
+    public Task<bool> DeleteStationAsync(string tenant, string name, CancellationToken cancellationToken) =>
+        GuardAsync(() => stations.DeleteStationAsync(tenant, name, cancellationToken));
 
     public Task<bool> CommitStepAsync(StationCommit commit, CancellationToken cancellationToken) => GuardAsync(() => stations.CommitStepAsync(commit, cancellationToken));
 
-    public Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string name, int limit, CancellationToken cancellationToken) => GuardAsync(() => stations.GetStepsAsync(name, limit, cancellationToken));
+    public Task<IReadOnlyList<StationStepLog>> GetStepsAsync(string tenant, string name, int limit, CancellationToken cancellationToken) =>
+        GuardAsync(() => stations.GetStepsAsync(tenant, name, limit, cancellationToken));
 
     public async ValueTask DisposeAsync()
     {

@@ -81,27 +81,27 @@ public abstract class SchemaMigrationContract : IAsyncLifetime
 
         var store = Open();
 
-        var boiler = await store.GetAsync(Boiler.Id, default);
+        var boiler = await store.GetAsync("", Boiler.Id, default);
         Assert.NotNull(boiler);
         Assert.Equal(Boiler.Summary, boiler!.Summary);
         Assert.Equal(Boiler.Document, boiler.Document);
-        var listing = await store.ListAsync(0, 10, default);
+        var listing = await store.ListAsync("", 0, 10, default);
         Assert.Equal(2, listing.Total);
         Assert.Equal([Boiler.Summary, Column.Summary], listing.Items);
 
-        var alias = await store.GetAliasAsync("unit-4", default);
+        var alias = await store.GetAliasAsync("", "unit-4", default);
         Assert.NotNull(alias);
         Assert.Equal(Column.Id, alias!.ModelId);
         Assert.Equal(T0.AddHours(2), alias.UpdatedAt);
-        Assert.Equal([new AliasChange(Boiler.Id, T0.AddHours(1)), new AliasChange(Column.Id, T0.AddHours(2))], alias.History);
-        var blocked = await store.DeleteAsync(Column.Id, default);
+        Assert.Equal([new AliasChange(Boiler.Id, T0.AddHours(1), null), new AliasChange(Column.Id, T0.AddHours(2), null)], alias.History);
+        var blocked = await store.DeleteAsync("", Column.Id, default);
         Assert.Equal(DeleteStatus.ReferencedByAlias, blocked.Status);
         Assert.Equal("unit-4", blocked.BlockingAlias);
 
         // New registrations follow the old ones.
         var added = new StoredModel(new StoredModelSummary(Id("added"), "added", 1, 1, 1, 5, T0.AddDays(1)), Encoding.UTF8.GetBytes("{}"));
-        Assert.Equal(PutOutcome.Created, await store.PutIfAbsentAsync(added, default));
-        Assert.Equal([Boiler.Id, Column.Id, added.Id], (await store.ListAsync(0, 10, default)).Items.Select(i => i.Id));
+        Assert.Equal(PutOutcome.Created, await store.PutIfAbsentAsync("", added, default));
+        Assert.Equal([Boiler.Id, Column.Id, added.Id], (await store.ListAsync("", 0, 10, default)).Items.Select(i => i.Id));
 
         Assert.Equal(Expected(ShippedMigrations.Migrations), await RecordedVersionsAsync());
     }
@@ -126,7 +126,7 @@ public abstract class SchemaMigrationContract : IAsyncLifetime
 
         var store = Open();
         var refused = await Assert.ThrowsAsync<InvalidOperationException>(() => store.PingAsync(default));
-        await Assert.ThrowsAsync<InvalidOperationException>(() => store.GetAsync(Boiler.Id, default));
+        await Assert.ThrowsAsync<InvalidOperationException>(() => store.GetAsync("", Boiler.Id, default));
 
         Assert.Contains($"is at schema version {newer}", refused.Message);
         Assert.Contains($"knows schema versions up to {ShippedMigrations.Latest}", refused.Message);
