@@ -65,6 +65,13 @@ public static class CompileLoad
         await sampler;
         long rssAfter = ResidentBytes(pid);
 
+        // Idle for one more phase: the collector gives back what the compiles left behind only some time after.
+        await Task.Delay(TimeSpan.FromSeconds(seconds));
+        long rssIdle = ResidentBytes(pid);
+        string metrics = await client.GetStringAsync("/metrics");
+        string Metric(string name) => metrics.Split('\n').FirstOrDefault(l => l.StartsWith(name + " ", StringComparison.Ordinal))?[(name.Length + 1)..] ?? "?";
+        double cacheBytes = double.TryParse(Metric("lookahead_model_cache_bytes"), CultureInfo.InvariantCulture, out double b) ? b : 0;
+
         output.WriteLine($"compile load: {registrations} concurrent registrations of {States}×{Inputs}×{Horizon} models with input and rate limits; small model planned from 2 clients");
         output.WriteLine();
         output.WriteLine("| phase | small plans | p50 ms | p99 ms | max ms | failed |");
@@ -76,8 +83,14 @@ public static class CompileLoad
 
         output.WriteLine();
         output.WriteLine("registrations answered: " + string.Join(", ", answers.GroupBy(a => a.Status).OrderBy(g => g.Key).Select(g => $"{g.Count()} × {g.Key}")));
+        foreach (var refused in answers.Where(a => a.Status is not (200 or 201 or 503)).Take(1))
+        {
+            output.WriteLine($"first refusal: {refused.Body}");
+        }
+
         output.WriteLine($"registration times: first {answers.Min(a => a.Seconds):f1} s, median {Percentile([.. answers.Select(a => a.Seconds)], 0.5):f1} s, last {answers.Max(a => a.Seconds):f1} s");
-        output.WriteLine($"service resident memory: before {Mb(rssBefore)}, peak {Mb(peak)}, after {Mb(rssAfter)}");
+        output.WriteLine($"service resident memory: before {Mb(rssBefore)}, peak {Mb(peak)}, after the last phase {Mb(rssAfter)}, after {seconds} s idle {Mb(rssIdle)}");
+        output.WriteLine($"compiled-model cache then: {Metric("lookahead_model_cache_entries")} models, {Mb((long)cacheBytes)} estimated");
         return baseline.Failed + during.Failed + after.Failed == 0 ? 0 : 1;
     }
 
@@ -96,12 +109,12 @@ public static class CompileLoad
         return JsonNode.Parse(await response.Content.ReadAsStringAsync())!["id"]!.GetValue<string>();
     }
 
-    private static async Task<(int Status, double Seconds)> RegisterAsync(HttpClient client, string document)
+    private static async Task<(int Status, double Seconds, string Body)> RegisterAsync(HttpClient client, string document)
     {
         var clock = Stopwatch.StartNew();
         using var response = await client.PostAsync("/v1/models", new StringContent(document, Encoding.UTF8, "application/json"));
-        await response.Content.ReadAsByteArrayAsync();
-        return ((int)response.StatusCode, clock.Elapsed.TotalSeconds);
+        string body = await response.Content.ReadAsStringAsync();
+        return ((int)response.StatusCode, clock.Elapsed.TotalSeconds, body);
     }
 
     private static async Task<Phase> PlanForAsync(HttpClient client, string id, string body, TimeSpan length, int clients)
@@ -147,7 +160,8 @@ public static class CompileLoad
         string Repeat(double value, int count) => "[" + string.Join(",", Enumerable.Repeat(value.ToString("R", CultureInfo.InvariantCulture), count)) + "]";
         return "{\"name\":\"compile-load-" + seed + "\","
             + "\"plant\":{\"a\":" + Matrix(States, States, 0.9 / Math.Sqrt(States)) + ",\"b\":" + Matrix(States, Inputs, 1) + ",\"timeDomain\":\"discrete\",\"sampleTime\":1},"
-            + "\"cost\":{\"horizon\":" + Horizon + ",\"outputWeight\":1,\"inputWeight\":0.1,\"inputRateWeight\":0.1,\"terminalWeight\":\"riccati\"},"
+            + "\"cost\":{\"horizon\":" + Horizon + ",\"outputWeight\":" + Repeat(1, States) + ",\"inputWeight\":" + Repeat(0.1, Inputs)
+            + ",\"inputRateWeight\":" + Repeat(0.1, Inputs) + ",\"terminalWeight\":\"riccati\"},"
             + "\"limits\":{\"inputMin\":" + Repeat(-1, Inputs) + ",\"inputMax\":" + Repeat(1, Inputs)
             + ",\"inputRateMin\":" + Repeat(-0.2, Inputs) + ",\"inputRateMax\":" + Repeat(0.2, Inputs) + "}}";
     }

@@ -15,6 +15,9 @@ namespace Lookahead.Api.Catalog;
 /// </summary>
 public sealed class CompileBudget : IDisposable
 {
+    /// <summary>Estimated bytes compiled since the last full collection worth giving back once compiles drain.</summary>
+    private const long CollectAfterBytes = 256L * 1024 * 1024;
+
     private readonly CompileBudgetOptions options;
     private readonly IModelCompilation compilation;
     private readonly CatalogMetrics metrics;
@@ -22,6 +25,7 @@ public sealed class CompileBudget : IDisposable
     private readonly TimeProvider time;
     private readonly Lock gate = new();
     private long bytesInFlight;
+    private long compiledSinceCollection;
     private int waiting;
 
     public CompileBudget(IOptions<CompileBudgetOptions> options, IModelCompilation compilation, CatalogMetrics metrics, TimeProvider time)
@@ -70,12 +74,33 @@ public sealed class CompileBudget : IDisposable
         }
         finally
         {
+            bool drained;
             lock (gate)
             {
                 bytesInFlight -= estimate;
+                compiledSinceCollection += estimate;
+                drained = bytesInFlight == 0 && compiledSinceCollection >= CollectAfterBytes;
+                if (drained)
+                {
+                    compiledSinceCollection = 0;
+                }
+            }
+
+            if (drained)
+            {
+                GiveBackMemory();
             }
         }
     }
+
+    /// <summary>
+    /// After a burst of large compiles their working arrays (and any models the cache evicted meanwhile) are garbage
+    /// in the large-object heap, which only a full collection frees; plans allocate too little to cause one, so the
+    /// process would keep that memory indefinitely. Once the last compile in flight ends, one compacting collection
+    /// gives it back to the system: a single pause after the burst, not one per compile.
+    /// </summary>
+    private static void GiveBackMemory() =>
+        ThreadPool.UnsafeQueueUserWorkItem(_ => GC.Collect(GC.MaxGeneration, GCCollectionMode.Aggressive, blocking: true, compacting: true), null);
 
     public void Dispose() => slots.Dispose();
 
@@ -141,8 +166,9 @@ public sealed class CompileBudget : IDisposable
         metrics.CompilesRunning.Inc();
         try
         {
-            // A worker thread: the compile is CPU-bound and must not hold the request's thread, nor run inline on it.
-            return await Task.Run(() => compilation.Compile(document, compileOptions, linked.Token), CancellationToken.None);
+            // A thread of its own at lower priority: the compile is CPU-bound and must not hold a pool thread or the
+            // request's, nor take the cores from plans.
+            return await CompileThread.Run(() => compilation.Compile(document, compileOptions, linked.Token));
         }
         catch (OperationCanceledException ex) when (budget.IsCancellationRequested && !cancellationToken.IsCancellationRequested)
         {
