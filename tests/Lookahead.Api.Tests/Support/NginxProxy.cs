@@ -160,7 +160,7 @@ public sealed class NginxProxy : IDisposable
                 client_max_body_size 2m;
 
                 # status | upstreams tried, in order | their statuses | request: a retried request names two upstreams.
-                log_format replicas '$status|$upstream_addr|$upstream_status|$request_method $request_uri';
+                log_format replicas '$status|$upstream_addr|$upstream_status|$request_method $request_uri|$http_plan_number';
                 access_log {{folder}}/access.log replicas;
 
                 server {

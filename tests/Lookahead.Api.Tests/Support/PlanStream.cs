@@ -13,7 +13,11 @@ public sealed class PlanStream(HttpClient client, string modelId, string expecte
 {
     private const string Body = """{"state":[1,0]}""";
 
+    /// <summary>The request header that carries each request's number, so the proxy's log can name it.</summary>
+    public const string NumberHeader = "plan-number";
+
     private readonly ConcurrentQueue<string> failures = new();
+    private readonly ConcurrentQueue<int> failed = new();
     private readonly int ceiling = total;
     private int limit = total;
     private int sent;
@@ -30,6 +34,9 @@ public sealed class PlanStream(HttpClient client, string modelId, string expecte
     public int CompletedAtKill { get; private set; }
 
     public IReadOnlyCollection<string> Failures => failures;
+
+    /// <summary>The numbers of the failed requests (as sent in <see cref="NumberHeader"/>).</summary>
+    public IReadOnlyCollection<int> FailedNumbers => failed;
 
     /// <summary>Sends no request beyond the first <paramref name="count"/> (never more than the total given at the start).</summary>
     public void StopAfter(int count) => Volatile.Write(ref limit, Math.Min(count, ceiling));
@@ -65,15 +72,20 @@ public sealed class PlanStream(HttpClient client, string modelId, string expecte
 
             try
             {
-                var response = await client.PostJsonAsync($"/v1/models/{modelId}/plan", Body);
+                using var request = new HttpRequestMessage(HttpMethod.Post, $"/v1/models/{modelId}/plan")
+                {
+                    Content = new StringContent(Body, System.Text.Encoding.UTF8, "application/json"),
+                };
+                request.Headers.Add(NumberHeader, number.ToString(System.Globalization.CultureInfo.InvariantCulture));
+                var response = await client.SendAsync(request);
                 string text = await response.Content.ReadAsStringAsync();
                 if (response.StatusCode != HttpStatusCode.OK)
                 {
-                    failures.Enqueue($"request {number}: {(int)response.StatusCode} {text}");
+                    Fail(number, $"{(int)response.StatusCode} {text}");
                 }
                 else if (JsonNode.Parse(text)!["inputs"]!.ToJsonString() != expectedInputs)
                 {
-                    failures.Enqueue($"request {number}: other inputs {text}");
+                    Fail(number, $"other inputs {text}");
                 }
                 else
                 {
@@ -82,7 +94,7 @@ public sealed class PlanStream(HttpClient client, string modelId, string expecte
             }
             catch (Exception ex) when (ex is HttpRequestException or TaskCanceledException)
             {
-                failures.Enqueue($"request {number}: {ex.GetType().Name} {ex.Message}");
+                Fail(number, $"{ex.GetType().Name} {ex.Message}");
             }
             finally
             {
@@ -94,5 +106,11 @@ public sealed class PlanStream(HttpClient client, string modelId, string expecte
                 await Task.Delay(pause);
             }
         }
+    }
+
+    private void Fail(int number, string reason)
+    {
+        failed.Enqueue(number);
+        failures.Enqueue($"request {number}: {reason}");
     }
 }
