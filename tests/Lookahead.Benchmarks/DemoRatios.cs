@@ -109,7 +109,7 @@ public static class DemoRatios
         output.WriteLine($"demo ({(engineering ? "engineering units" : "fractions")}), {requests.Count} seeded states × {Repetitions} interleaved repetitions");
         output.WriteLine($"unconstrained plan (limits removed): median {freeMedian:F1} µs");
         output.WriteLine($"limited plan: median {median:F1} µs = {median / freeMedian:F1}×, p99 {p99:F1} µs = {p99 / freeMedian:F1}×");
-        output.WriteLine($"iterations: median {iterations[iterations.Length / 2]}, max {iterations[^1]}");
+        output.WriteLine($"iterations: median {iterations[iterations.Length / 2]}, mean {iterations.Average():F2}, max {iterations[^1]}");
         return 0;
     }
 
