@@ -12,6 +12,13 @@ namespace Lookahead.Api.Aliases;
 /// <summary>Named pointers to models, so a station can follow a re-tuned model without reconfiguration.</summary>
 public static class AliasesApi
 {
+    /// <summary>The aliases room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddAliases(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o => o.RequireMembers<AliasRequest>("modelId"));
+        return services;
+    }
+
     public static RouteGroupBuilder MapAliasesApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);

@@ -11,6 +11,13 @@ namespace Lookahead.Api.Estimation;
 /// <summary>Stateless estimator samples for models registered with an estimator: the station keeps the last answer.</summary>
 public static class EstimationApi
 {
+    /// <summary>The estimation room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddEstimation(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o => o.RequireMembers<EstimateRequestDto>("appliedInput"));
+        return services;
+    }
+
     public static RouteGroupBuilder MapEstimationApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Estimation").RequireRateLimiting(RateLimitPolicy.Name);

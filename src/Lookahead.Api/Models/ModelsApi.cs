@@ -10,6 +10,17 @@ namespace Lookahead.Api.Models;
 /// <summary>Registering, reading, listing and deleting models, and their receding-horizon gain.</summary>
 public static class ModelsApi
 {
+    /// <summary>The models room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddModels(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.CloseSet<ModelRegistrationResponse>("timeDomain", CatalogServices.TimeDomains);
+            o.CloseSet<EstimatorDiagnosticsDto>("disturbanceModel", CatalogServices.DisturbanceModels);
+        });
+        return services;
+    }
+
     public static RouteGroupBuilder MapModelsApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);

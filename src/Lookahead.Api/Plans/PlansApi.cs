@@ -26,6 +26,12 @@ public static class PlansApi
             Description = "One vector held over the horizon, or 1…N rows (row k for step k), the last row held to the end.",
             OneOf = [OpenApiSchemas.Vector(), OpenApiSchemas.Matrix()],
         }));
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.CloseSet<PlanResponse>("status", WarningCodes.PlanStatuses);
+            o.CloseSet<ActiveLimitDto>("kind", WarningCodes.LimitKinds);
+            o.RequireMembers<Estimation.StateEstimateDto>("state");
+        });
         return services;
     }
 

@@ -23,6 +23,17 @@ public static class ReplayApi
         services.AddOptions<ReplayOptions>().BindConfiguration(ReplayOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<ReplayMetrics>();
         services.AddSingleton<ReplayRunner>();
+        services.ConfigureSwaggerGen(o =>
+        {
+            string[] details = [ReplayDetails.Name(ReplayDetail.FirstMove), ReplayDetails.Name(ReplayDetail.Full)];
+            o.RequireMembers<ReplayRequest>("requests");
+            o.CloseSet<ReplayRequest>("detail", details);
+            o.CloseSet<ReplayResponse>("detail", details);
+            o.CloseSet<ReplayResponse>("reason", [ReplaySummary.ShutdownReason]);
+            o.CloseSet<ReplayRowResult>("status", WarningCodes.PlanStatuses.Append("error"));
+            o.CloseQuerySet("ReplayPlans", "detail", details);
+            o.OperationFilter<ReplayMediaTypesOperationFilter>();
+        });
         return services;
     }
 

@@ -11,6 +11,23 @@ namespace Lookahead.Api.Simulation;
 /// <summary>Closed-loop simulation: what the controller would do over time, optionally against a different true plant.</summary>
 public static class SimulationApi
 {
+    /// <summary>The simulation room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddSimulation(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.RequireMembers<SimulationRequestDto>("initialState", "steps");
+            o.CloseSet<SimulationRequestDto>("feedback", ["state", "estimate"]);
+            o.RequireMembers<ReferenceChangeDto>("fromStep", "reference");
+            o.RequireMembers<MeasuredDisturbanceChangeDto>("fromStep", "disturbance");
+            o.RequireMembers<OutputDisturbanceChangeDto>("fromStep", "offset");
+            o.RequireMembers<MeasurementNoiseDto>("standardDeviation");
+            o.RequireMembers<TruePlantDto>("a", "b");
+            o.CloseSet<TruePlantDto>("timeDomain", Catalog.CatalogServices.TimeDomains);
+        });
+        return services;
+    }
+
     public static RouteGroupBuilder MapSimulationApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);

@@ -27,6 +27,17 @@ public static class StationsApi
 
         // Both stores keep stations beside their models, on the same connections and durability settings.
         services.AddSingleton(sp => (IStationStore)sp.GetRequiredService<IModelStore>());
+        services.ConfigureSwaggerGen(o =>
+        {
+            string[] details = [StationDetail.FirstMove, StationDetail.Full];
+            o.RequireMembers<StationRequest>("model");
+            o.CloseSet<StationRequest>("detail", details);
+            o.CloseSet<StationResponse>("detail", details);
+            o.RequireMembers<StationStepRequest>("sequence");
+            o.CloseSet<StationStepRequest>("mode", [StationStep.Auto, StationStep.Track]);
+            o.CloseSet<StationStepResponse>("status", WarningCodes.PlanStatuses.Append(StationStep.TrackingStatus));
+            o.CloseQuerySet("GetStationSteps", "format", ["json", "csv"]);
+        });
         return services;
     }
 
