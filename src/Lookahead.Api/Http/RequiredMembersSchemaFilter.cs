@@ -25,9 +25,9 @@ public sealed class RequiredMembersSchemaFilter(Type type, IReadOnlyList<string>
             concrete.Required.Add(name);
 
             // Null is no more a value for a required member than absence is.
-            if (concrete.Properties[name] is OpenApiSchema { Type: { } type } member)
+            if (concrete.Properties[name] is OpenApiSchema { Type: { } memberType } member)
             {
-                member.Type = type & ~JsonSchemaType.Null;
+                member.Type = memberType & ~JsonSchemaType.Null;
             }
         }
     }

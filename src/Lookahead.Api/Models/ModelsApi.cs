@@ -41,7 +41,8 @@ public static class ModelsApi
         group.MapGet("/{id}", GetAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModel")
-            .WithSummary("A registered model's document, dimensions and diagnostics")
+            .WithSummary("A registered model's document, dimensions and diagnostics; cacheable (ETag, immutable), 304 on a matching If-None-Match")
+            .Produces(StatusCodes.Status304NotModified)
             .ProducesLookupProblems();
 
         group.MapDelete("/{id}", DeleteAsync)
@@ -99,7 +100,7 @@ public static class ModelsApi
         return TypedResults.Ok(new ModelPage(items, from, size, listing.Total));
     }
 
-    public static async Task<Results<Ok<ModelDetailsResponse>, ProblemHttpResult>> GetAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ModelDetailsResponse>, StatusCodeHttpResult, ProblemHttpResult>> GetAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
     {
         if (!ModelId.IsWellFormed(id))
         {
@@ -108,12 +109,24 @@ public static class ModelsApi
 
         string? tenant = Tenants.Reading(context);
         var found = await catalog.GetStoredAsync(tenant, id, cancellationToken);
+        if (found is { } registered)
+        {
+            // Answered before the compiled model is looked up, so a revalidation never costs a compile.
+            var tag = ModelCaching.Tag(id, registered.Stored.Summary.RegisteredAt);
+            if (ModelCaching.IsFresh(context.Request, tag))
+            {
+                ModelCaching.Describe(context.Response, tag);
+                return TypedResults.StatusCode(StatusCodes.Status304NotModified);
+            }
+        }
+
         var model = found is null ? null : await catalog.GetCompiledAsync(tenant, id);
         if (found is not { } stored || model is null)
         {
             return ModelProblems.ModelNotFound(id);
         }
 
+        ModelCaching.Describe(context.Response, ModelCaching.Tag(id, stored.Stored.Summary.RegisteredAt));
         return TypedResults.Ok(ModelResponses.Details(id, stored, model));
     }
 

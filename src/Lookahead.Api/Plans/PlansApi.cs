@@ -117,7 +117,7 @@ public static class PlansApi
                 PlanRequestParser.Parse(bytes, call, "", depth);
                 if (call.SyntaxErrorAt is { } at)
                 {
-                    return BodyResult<PlanCall>.Fail(ApiProblems.MalformedJson(new JsonErrorDescription(call.Errors[0], at.Line, at.Position)));
+                    return BodyResult<PlanCall>.Fail(ApiProblems.JsonBody(new JsonErrorDescription(call.Errors[0], at.Line, at.Position)));
                 }
 
                 return call.Errors.Count > 0 ? BodyResult<PlanCall>.Fail(ApiProblems.Validation(call.Errors)) : BodyResult<PlanCall>.Ok(call);

@@ -134,7 +134,7 @@ public static class ReplayApi
                 {
                     await reader.CompleteAsync();
                     return error.Reason.StartsWith("is not valid JSON", StringComparison.Ordinal)
-                        ? ApiProblems.MalformedJson(new JsonErrorDescription(error, null, null))
+                        ? ApiProblems.JsonBody(new JsonErrorDescription(error, null, null))
                         : ApiProblems.Validation([error], "The replay body is not { \"detail\"?, \"requests\": [ … ] }; no row was processed.");
                 }
 
