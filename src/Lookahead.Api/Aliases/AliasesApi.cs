@@ -26,6 +26,8 @@ public static class AliasesApi
         group.MapPut("/{name}", PutAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("SetAlias")
+            .WithParameterExample("name", "cold-store-demo")
+            .WithRequestExample("""{"modelId":"729cfef133dc15239c2f676cdf5375074faee452a2e73d5ad1d00987189169d9"}""")
             .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
             .Accepts<AliasRequest>("application/json")
             .ProducesLookupProblems()
@@ -34,12 +36,14 @@ public static class AliasesApi
         group.MapGet("/{name}", GetAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetAlias")
+            .WithParameterExample("name", "cold-store-demo")
             .WithSummary("An alias's current model and its history with timestamps")
             .ProducesLookupProblems();
 
         group.MapDelete("/{name}", DeleteAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteAlias")
+            .WithParameterExample("name", "cold-store-demo")
             .WithSummary("Delete an alias and its history (the model stays)")
             .ProducesLookupProblems();
 
@@ -47,6 +51,8 @@ public static class AliasesApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForAlias")
+            .WithParameterExample("name", "cold-store-demo")
+            .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0]}""")
             .WithSummary("Plan with the model the alias points at now; the answer names that model")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())

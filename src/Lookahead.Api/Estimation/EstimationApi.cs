@@ -26,6 +26,8 @@ public static class EstimationApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("EstimateState")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"appliedInput":[30,30,0],"measurement":[-19.2,-19.6,-19.9],"measuredDisturbance":[15]}""")
             .WithSummary("One estimator sample: propagate the last estimate with the applied input, correct it with the measurement")
             .Accepts<EstimateRequestDto>("application/json")
             .ProducesBodyProblemsForModel();

@@ -41,11 +41,11 @@ public sealed class ExamplesOperationFilter : IOperationFilter
         {
             if (operation.Parameters?.OfType<OpenApiParameter>().FirstOrDefault(p => p.Name == name) is { } parameter)
             {
-                parameter.Example = JsonValue.Create(value);
+                parameter.Example = long.TryParse(value, System.Globalization.CultureInfo.InvariantCulture, out long number) ? JsonValue.Create(number) : JsonValue.Create(value);
             }
         }
     }
 
     private static JsonNode? Node(string mediaType, string text) =>
-        mediaType.EndsWith("json", StringComparison.Ordinal) ? JsonNode.Parse(text) : JsonValue.Create(text);
+        mediaType is "application/json" || mediaType.EndsWith("+json", StringComparison.Ordinal) ? JsonNode.Parse(text) : JsonValue.Create(text);
 }

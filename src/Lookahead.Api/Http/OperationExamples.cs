@@ -17,7 +17,7 @@ public sealed class OperationExamples
 public static class OperationExampleConventions
 {
     /// <summary>The cold-store demo's id; any registered id has this form (64 lower-case hex digits).</summary>
-    public const string ExampleModelId = "3f1c9a0d5e7b2468ac13579bdf02468ace13579bdf02468ace13579bdf024681";
+    public const string ExampleModelId = "729cfef133dc15239c2f676cdf5375074faee452a2e73d5ad1d00987189169d9";
 
     public static RouteHandlerBuilder WithRequestExample(this RouteHandlerBuilder builder, string body, string mediaType = "application/json") =>
         builder.Examples(e => e.Requests[mediaType] = body);

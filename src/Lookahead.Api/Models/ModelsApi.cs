@@ -28,6 +28,7 @@ public static class ModelsApi
         group.MapPost("", RegisterAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("RegisterModel")
+            .WithRequestExample("""{"name":"double-integrator","plant":{"a":[[1,0.1],[0,1]],"b":[[0.005],[0.1]],"sampleTime":0.1,"timeDomain":"discrete"},"cost":{"horizon":10,"outputWeight":[[1,0],[0,0.1]],"inputWeight":[0.01],"terminalWeight":"riccati"},"limits":{"inputMin":[-1],"inputMax":[1]}}""")
             .WithSummary("Register a plant-and-cost model; its id is the SHA-256 of its canonical form")
             .Accepts<ModelDocumentDto>("application/json")
             .ProducesBodyProblems();
@@ -35,12 +36,15 @@ public static class ModelsApi
         group.MapGet("", ListAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("ListModels")
+            .WithParameterExample("offset", "0")
+            .WithParameterExample("limit", "50")
             .WithSummary("List registered models in registration order, a page at a time")
             .ProducesProblem(StatusCodes.Status400BadRequest);
 
         group.MapGet("/{id}", GetAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithSummary("A registered model's document, dimensions and diagnostics; cacheable (ETag, immutable), 304 on a matching If-None-Match")
             .Produces(StatusCodes.Status304NotModified)
             .ProducesLookupProblems();
@@ -48,6 +52,7 @@ public static class ModelsApi
         group.MapDelete("/{id}", DeleteAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithSummary("Delete a model (refused while an alias points at it)")
             .ProducesLookupProblems()
             .ProducesProblem(StatusCodes.Status409Conflict);
@@ -55,6 +60,7 @@ public static class ModelsApi
         group.MapGet("/{id}/gain", GetGainAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModelGain")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithSummary("The receding-horizon gain K (u0 = −K x0), closed-loop eigenvalues and spectral radius")
             .ProducesLookupProblems();
 

@@ -43,6 +43,8 @@ public static class PlansApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0],"disturbance":[[18],[19],[20]],"reference":[-20,-20,-20]}""")
             .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())

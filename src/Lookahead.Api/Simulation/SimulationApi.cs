@@ -36,6 +36,8 @@ public static class SimulationApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("SimulateModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"initialState":[-17.5,-18.5,-19.5],"steps":60,"previousInput":[20,20,0],"references":[{"fromStep":0,"reference":[-20,-20,-20]},{"fromStep":30,"reference":[-21.5,-21,-21]}]}""")
             .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
             .Accepts<SimulationRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())
