@@ -31,6 +31,7 @@ public static class AliasesApi
             .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
             .Accepts<AliasRequest>("application/json")
             .ProducesLookupProblems()
+            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
             .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
 
         group.MapGet("/{name}", GetAsync)
