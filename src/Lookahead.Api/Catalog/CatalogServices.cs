@@ -21,14 +21,17 @@ public static class CatalogServices
         {
             o.MapType<WeightDto>(() => new OpenApiSchema
             {
-                Description = "A weight: a vector (its diagonal) or a square matrix (array of rows). The shape given is kept: reading the model back returns it as sent.",
-                OneOf = [Titled(OpenApiSchemas.Vector(), "diagonal", "The diagonal of the weight, one entry per signal."), Titled(OpenApiSchemas.Matrix(), "matrix", "The full symmetric weight as an array of rows.")],
+                Description = "A weight: a square matrix (array of rows) or a vector (its diagonal). The shape given is kept: reading the model back returns it as sent.",
+
+                // The matrix comes first: generators that type a union by its first alternative then keep matrices.
+                OneOf = [Titled(OpenApiSchemas.Matrix(), "matrix", "The full symmetric weight as an array of rows."), Titled(OpenApiSchemas.Vector(), "diagonal", "The diagonal of the weight, one entry per signal.")],
             });
             o.MapType<TerminalWeightDto>(() => new OpenApiSchema
             {
-                Description = "Terminal weight: 'riccati' (default), 'stage', or an explicit n×n matrix.",
+                Description = "Terminal weight: an explicit n×n matrix, or 'riccati' (the default, written back when omitted) or 'stage'.",
                 OneOf =
                 [
+                    Titled(OpenApiSchemas.Matrix(), "matrix", "An explicit n×n terminal weight as an array of rows."),
                     new OpenApiSchema
                     {
                         Title = "named",
@@ -36,7 +39,6 @@ public static class CatalogServices
                         Enum = [JsonValue.Create("riccati"), JsonValue.Create("stage")],
                         Description = "riccati: the stabilising solution of the discrete algebraic Riccati equation; stage: CᵀQC.",
                     },
-                    Titled(OpenApiSchemas.Matrix(), "matrix", "An explicit n×n terminal weight as an array of rows."),
                 ],
             });
             o.RequireMembers<ModelDocumentDto>("plant", "cost");

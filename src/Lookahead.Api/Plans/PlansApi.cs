@@ -23,8 +23,10 @@ public static class PlansApi
         }));
         services.ConfigureSwaggerGen(o => o.MapType<VectorOrRows>(() => new Microsoft.OpenApi.OpenApiSchema
         {
-            Description = "One vector held over the horizon, or 1…N rows (row k for step k), the last row held to the end.",
-            OneOf = [OpenApiSchemas.Vector(), OpenApiSchemas.Matrix()],
+            Description = "1…N rows (row k for step k, the last row held to the end), or one vector held over the horizon.",
+
+            // Rows first: generators that type a union by its first alternative can then send schedules (one row is a held vector).
+            OneOf = [OpenApiSchemas.Matrix(), OpenApiSchemas.Vector()],
         }));
         services.ConfigureSwaggerGen(o =>
         {

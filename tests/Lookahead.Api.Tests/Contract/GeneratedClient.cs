@@ -9,8 +9,10 @@ using NSwag.CodeGeneration.OperationNameGenerators;
 namespace Lookahead.Api.Tests.Contract;
 
 /// <summary>
-/// A C# client generated from an OpenAPI document by NSwag (System.Text.Json, lists for arrays, one class named by
-/// operation ids), compiled in memory with Roslyn together with a driver that uses it, and loaded in a collectible context.
+/// A C# client generated from an OpenAPI document by NSwag (lists for arrays, one class named by operation ids),
+/// compiled in memory with Roslyn together with a driver that uses it, and loaded in a collectible context. Newtonsoft
+/// JSON, NSwag's default: its enum converter reads the wire names (iteration-limit, urn:lookahead:problem:…) through
+/// EnumMember, which NSwag's System.Text.Json output cannot.
 /// </summary>
 public static class GeneratedClient
 {
@@ -29,7 +31,7 @@ public static class GeneratedClient
             CSharpGeneratorSettings =
             {
                 Namespace = Namespace,
-                JsonLibrary = CSharpJsonLibrary.SystemTextJson,
+                JsonLibrary = CSharpJsonLibrary.NewtonsoftJson,
                 ArrayType = "System.Collections.Generic.List",
                 ArrayInstanceType = "System.Collections.Generic.List",
                 GenerateNullableReferenceTypes = false,
@@ -44,6 +46,7 @@ public static class GeneratedClient
         var trees = sources.Select(s => CSharpSyntaxTree.ParseText(s, new CSharpParseOptions(LanguageVersion.Latest))).ToList();
         var references = ((string)AppContext.GetData("TRUSTED_PLATFORM_ASSEMBLIES")!)
             .Split(Path.PathSeparator)
+            .Append(typeof(Newtonsoft.Json.JsonConvert).Assembly.Location)
             .Select(path => MetadataReference.CreateFromFile(path));
         var compilation = CSharpCompilation.Create(
             "Lookahead.GeneratedClient." + Guid.NewGuid().ToString("N"),

@@ -17,10 +17,11 @@ public class OpenApiUnionTests
         {
             var alternatives = ServedDocument.Schema(document, "CostDto")["properties"]![member]!["oneOf"]!.AsArray();
             Assert.Equal(2, alternatives.Count);
-            Assert.Equal("diagonal", alternatives[0]!["title"]!.GetValue<string>());
-            Assert.Equal("number", alternatives[0]!["items"]!["type"]!.GetValue<string>());
-            Assert.Equal("matrix", alternatives[1]!["title"]!.GetValue<string>());
-            Assert.Equal("number", alternatives[1]!["items"]!["items"]!["type"]!.GetValue<string>());
+            // The matrix first: a generator that types a union by its first alternative keeps matrices (see the generated-client tests).
+            Assert.Equal("matrix", alternatives[0]!["title"]!.GetValue<string>());
+            Assert.Equal("number", alternatives[0]!["items"]!["items"]!["type"]!.GetValue<string>());
+            Assert.Equal("diagonal", alternatives[1]!["title"]!.GetValue<string>());
+            Assert.Equal("number", alternatives[1]!["items"]!["type"]!.GetValue<string>());
         }
     }
 
@@ -32,8 +33,8 @@ public class OpenApiUnionTests
 
         var alternatives = ServedDocument.Schema(document, "CostDto")["properties"]!["terminalWeight"]!["oneOf"]!.AsArray();
         Assert.Equal(2, alternatives.Count);
-        Assert.Equal(["riccati", "stage"], ServedDocument.Strings(alternatives[0]!["enum"]));
-        Assert.Equal("array", alternatives[1]!["items"]!["type"]!.GetValue<string>());
+        Assert.Equal("array", alternatives[0]!["items"]!["type"]!.GetValue<string>());
+        Assert.Equal(["riccati", "stage"], ServedDocument.Strings(alternatives[1]!["enum"]));
     }
 
     [Fact]
