@@ -16,6 +16,12 @@ source "$repo/tests/postgres.sh"
 start_test_postgres || echo "PostgreSQL unavailable: the shared-store tests will be skipped" >&2
 trap stop_test_postgres EXIT
 
+# The OpenAPI linter .ci/run installs, when an earlier run left it in the cache and nobody named another.
+default_linter="${LOOKAHEAD_CACHE:-$HOME/.cache/lookahead}/openapi-lint/node_modules/.bin/redocly"
+if [ -z "${LOOKAHEAD_OPENAPI_LINTER:-}" ] && [ -x "$default_linter" ]; then
+  export LOOKAHEAD_OPENAPI_LINTER="$default_linter"
+fi
+
 dotnet build Service.sln -c Release -nologo -v quiet -warnaserror
 build_rc=$?
 if [ $build_rc -ne 0 ]; then

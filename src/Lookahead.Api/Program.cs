@@ -16,7 +16,8 @@ builder.AddLookaheadConfiguration(args);
 builder.AddLookaheadLogging();
 builder.Services.AddLookaheadHosting();
 builder.Services.AddAccess();
-builder.Services.AddPlans().AddReplay().AddStations().AddJsonContext(ApiJsonContext.Default);
+builder.Services.AddModels().AddPlans().AddReplay().AddSimulation().AddEstimation().AddAliases().AddStations()
+    .AddJsonContext(ApiJsonContext.Default);
 
 var app = builder.Build();
 app.UseLookaheadPipeline();

@@ -12,6 +12,13 @@ namespace Lookahead.Api.Aliases;
 /// <summary>Named pointers to models, so a station can follow a re-tuned model without reconfiguration.</summary>
 public static class AliasesApi
 {
+    /// <summary>The aliases room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddAliases(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o => o.RequireMembers<AliasRequest>("modelId"));
+        return services;
+    }
+
     public static RouteGroupBuilder MapAliasesApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);
@@ -19,20 +26,25 @@ public static class AliasesApi
         group.MapPut("/{name}", PutAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("SetAlias")
+            .WithParameterExample("name", "cold-store-demo")
+            .WithRequestExample("""{"modelId":"729cfef133dc15239c2f676cdf5375074faee452a2e73d5ad1d00987189169d9"}""")
             .WithSummary("Point an alias at a model (created if new); every change is kept in its history")
             .Accepts<AliasRequest>("application/json")
             .ProducesLookupProblems()
+            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
             .ProducesProblem(StatusCodes.Status415UnsupportedMediaType);
 
         group.MapGet("/{name}", GetAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetAlias")
+            .WithParameterExample("name", "cold-store-demo")
             .WithSummary("An alias's current model and its history with timestamps")
             .ProducesLookupProblems();
 
         group.MapDelete("/{name}", DeleteAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteAlias")
+            .WithParameterExample("name", "cold-store-demo")
             .WithSummary("Delete an alias and its history (the model stays)")
             .ProducesLookupProblems();
 
@@ -40,6 +52,8 @@ public static class AliasesApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForAlias")
+            .WithParameterExample("name", "cold-store-demo")
+            .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0]}""")
             .WithSummary("Plan with the model the alias points at now; the answer names that model")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())

@@ -11,6 +11,13 @@ namespace Lookahead.Api.Estimation;
 /// <summary>Stateless estimator samples for models registered with an estimator: the station keeps the last answer.</summary>
 public static class EstimationApi
 {
+    /// <summary>The estimation room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddEstimation(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o => o.RequireMembers<EstimateRequestDto>("appliedInput"));
+        return services;
+    }
+
     public static RouteGroupBuilder MapEstimationApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Estimation").RequireRateLimiting(RateLimitPolicy.Name);
@@ -19,6 +26,8 @@ public static class EstimationApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("EstimateState")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"appliedInput":[30,30,0],"measurement":[-19.2,-19.6,-19.9],"measuredDisturbance":[15]}""")
             .WithSummary("One estimator sample: propagate the last estimate with the applied input, correct it with the measurement")
             .Accepts<EstimateRequestDto>("application/json")
             .ProducesBodyProblemsForModel();

@@ -1,4 +1,5 @@
 using Lookahead.Api.Access;
+using Lookahead.Api.Http;
 using Microsoft.AspNetCore.Diagnostics.HealthChecks;
 using Prometheus;
 using Serilog;
@@ -18,6 +19,7 @@ public static class ApplicationBuilderExtensions
         }
 
         app.UseTraceIdHeader();
+        app.UseResponseCompression();
         // Outside the exception handler, so the line records the status the client got (a store fault's 503), not a 500.
         app.UseSerilogRequestLogging(o =>
         {
@@ -45,8 +47,16 @@ public static class ApplicationBuilderExtensions
         var registry = app.Services.GetRequiredService<CollectorRegistry>();
         app.UseHttpMetrics(o => o.SetMetricFactory(Metrics.WithCustomRegistry(registry)));
         app.UseRouting();
+
+        // Before authentication: a browser's preflight carries no key and is answered here.
+        if (app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<CorsSettings>>().Value.Enabled)
+        {
+            app.UseCors();
+        }
+
         app.UseAuthentication();
         app.UseAuthorization();
+        app.UseQueryParameterGuard();
         app.UseRateLimiter();
         app.UseSwaggerUI(o => o.SwaggerEndpoint($"/swagger/{OpenApiExtensions.DocumentName}/swagger.json", "Lookahead v1"));
         return app;

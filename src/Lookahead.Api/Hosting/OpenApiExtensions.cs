@@ -1,4 +1,5 @@
 using Lookahead.Api.Charts;
+using Lookahead.Api.Http;
 using Microsoft.OpenApi;
 
 namespace Lookahead.Api.Hosting;
@@ -17,8 +18,10 @@ public static class OpenApiExtensions
             {
                 Title = "Lookahead",
                 Version = "v1",
-                Description = "Optimal control moves for linear plants: register a plant-and-cost model once, then post measured states for the optimal input sequence and predicted trajectory.",
+                Description = "Optimal control moves for linear plants: register a plant-and-cost model once, then post measured states for the optimal input sequence and predicted trajectory. Every refusal is an RFC 9457 problem document (application/problem+json) naming each field at fault.",
+                License = new OpenApiLicense { Name = "MIT", Url = new Uri("https://opensource.org/license/mit") },
             });
+            o.AddServer(new OpenApiServer { Url = "http://127.0.0.1:5000", Description = "The default listen address (loopback; see Urls in the configuration)" });
             o.SupportNonNullableReferenceTypes();
 
             // Keys go as "Authorization: Bearer <key>" (or X-Api-Key); without configured keys the service is open on loopback.
@@ -33,6 +36,15 @@ public static class OpenApiExtensions
                 [new OpenApiSecuritySchemeReference(Access.ApiKeyAuthentication.SchemeName, document)] = [],
             });
             o.OperationFilter<SvgResponseFilter>();
+            o.CloseQuerySet<SvgAlternativeMetadata>("format", ["json", "svg"]);
+            o.SchemaFilter<AlwaysWrittenMembersSchemaFilter>();
+            o.OperationFilter<StandardResponsesOperationFilter>();
+            o.OperationFilter<ExamplesOperationFilter>();
+            o.DocumentFilter<ProblemSchemaDocumentFilter>();
+            o.DocumentFilter<UnionSchemaDocumentFilter>();
+            o.DocumentFilter<TagDescriptionsDocumentFilter>();
+            o.CloseSet<WarningDto>("code", WarningCodes.All);
+            o.CloseSet<WarningDto>("limit", WarningCodes.LimitKinds);
         });
         return services;
     }

@@ -37,6 +37,8 @@ public static class ServiceCollectionExtensions
         services.AddLookaheadRateLimiting();
         services.AddLookaheadOpenApi();
         services.AddLookaheadTracing();
+        services.AddLookaheadCompression();
+        services.AddLookaheadCors();
         services.AddSingleton(TimeProvider.System);
 
         // One registry per application instance, so two hosts in one process (as in tests) never share counters.
@@ -48,6 +50,7 @@ public static class ServiceCollectionExtensions
             return registry;
         });
         services.AddSingleton<RequestBodyReader>();
+        services.AddSingleton<QueryParameterGuard>();
         services.AddCatalog();
         services.AddSingleton<Aliases.AliasResolver>();
         services.AddHostedService<DemoModelSeeder>();
@@ -100,6 +103,58 @@ public static class ServiceCollectionExtensions
         });
     }
 
+    /// <summary>
+    /// gzip and Brotli for clients that ask (Accept-Encoding): plan trajectories, simulations, replays and charts are
+    /// long runs of digits that shrink several times over. The fastest level, since these answers are on hot paths.
+    /// </summary>
+    private static void AddLookaheadCompression(this IServiceCollection services)
+    {
+        services.AddResponseCompression(o =>
+        {
+            // The answers hold no secret beside text an attacker chooses, so compressing over TLS gives nothing away.
+            o.EnableForHttps = true;
+            o.Providers.Add<Microsoft.AspNetCore.ResponseCompression.BrotliCompressionProvider>();
+            o.Providers.Add<Microsoft.AspNetCore.ResponseCompression.GzipCompressionProvider>();
+            o.MimeTypes = ["application/json", "application/problem+json", "application/x-ndjson", "text/csv", "image/svg+xml", "text/plain"];
+        });
+        services.Configure<Microsoft.AspNetCore.ResponseCompression.BrotliCompressionProviderOptions>(o => o.Level = System.IO.Compression.CompressionLevel.Fastest);
+        services.Configure<Microsoft.AspNetCore.ResponseCompression.GzipCompressionProviderOptions>(o => o.Level = System.IO.Compression.CompressionLevel.Fastest);
+    }
+
+    /// <summary>Opt-in CORS: a default policy built from the "Cors" section, applied only when origins are listed.</summary>
+    private static void AddLookaheadCors(this IServiceCollection services)
+    {
+        services.AddOptions<CorsSettings>().BindConfiguration(CorsSettings.Section).ValidateDataAnnotations()
+            .Validate(o => o.OriginsWellFormed(), "Cors:AllowedOrigins must be origins such as https://tuning.example.net (scheme, host, optional port, no path) or \"*\"")
+            .ValidateOnStart();
+        services.AddCors();
+        services.AddOptions<Microsoft.AspNetCore.Cors.Infrastructure.CorsOptions>().Configure<IOptions<CorsSettings>>((cors, settings) =>
+        {
+            var s = settings.Value;
+            if (!s.Enabled)
+            {
+                return;
+            }
+
+            cors.AddDefaultPolicy(policy =>
+            {
+                if (s.AllowedOrigins.Contains("*"))
+                {
+                    policy.AllowAnyOrigin();
+                }
+                else
+                {
+                    policy.WithOrigins([.. s.AllowedOrigins]);
+                }
+
+                policy.WithMethods("GET", "HEAD", "POST", "PUT", "DELETE")
+                    .WithHeaders("Authorization", "X-Api-Key", "Content-Type", "If-None-Match", "traceparent", "tracestate")
+                    .WithExposedHeaders("ETag", "Location", "Retry-After", "trace-id")
+                    .SetPreflightMaxAge(TimeSpan.FromSeconds(s.MaxAgeSeconds));
+            });
+        });
+    }
+
     private static void AddLookaheadJson(this IServiceCollection services)
     {
         services.AddOptions<JsonOptions>().Configure<IOptions<RequestLimitsOptions>>((json, limits) => ApiJson.Configure(json.SerializerOptions, limits.Value));
@@ -136,7 +191,14 @@ public static class ServiceCollectionExtensions
             var problem = context.ProblemDetails;
             problem.Instance ??= context.HttpContext.Request.Path;
             problem.Extensions["traceId"] = TraceContext.Id(context.HttpContext);
-            if (!problem.Extensions.ContainsKey("errors"))
+            if (problem.Status == StatusCodes.Status415UnsupportedMediaType && !problem.Extensions.ContainsKey("errors"))
+            {
+                // Routing refused the content type before any handler ran: say what the route takes, as handlers do.
+                var ours = ApiProblems.UnsupportedMediaTypeDetails(context.HttpContext.Request.ContentType, AcceptedContentTypes.For(context.HttpContext));
+                (problem.Type, problem.Title, problem.Detail) = (ours.Type, ours.Title, ours.Detail);
+                problem.Extensions["errors"] = ours.Extensions["errors"];
+            }
+            else if (!problem.Extensions.ContainsKey("errors"))
             {
                 // Status-code pages (unknown route, wrong method) carry the same shape as every other problem.
                 problem.Extensions["errors"] = new List<ProblemError>();

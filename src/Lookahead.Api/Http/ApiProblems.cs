@@ -25,10 +25,13 @@ public static class ApiProblems
 
     public static ProblemHttpResult Validation(string path, string reason) => Validation([new ProblemError(path, reason)]);
 
-    public static ProblemDetails MalformedJsonDetails(JsonErrorDescription description)
+    /// <summary>A body the JSON reader refused: "malformed JSON" when it is not JSON at all, else a validation problem on the field.</summary>
+    public static ProblemDetails JsonBodyDetails(JsonErrorDescription description)
     {
         string where = description.Line is long line ? $" at line {line}, position {description.Position}" : "";
-        var problem = Create(StatusCodes.Status400BadRequest, ProblemTypes.MalformedJson, "Malformed JSON", $"The body could not be read{where}.", [description.Error]);
+        var problem = description.IsSyntax
+            ? Create(StatusCodes.Status400BadRequest, ProblemTypes.MalformedJson, "Malformed JSON", $"The body is not valid JSON{where}.", [description.Error])
+            : Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", $"The body is JSON, but a field{where} has the wrong form; see errors.", [description.Error]);
         if (description.Line is long l)
         {
             problem.Extensions["line"] = l;
@@ -38,7 +41,7 @@ public static class ApiProblems
         return problem;
     }
 
-    public static ProblemHttpResult MalformedJson(JsonErrorDescription description) => TypedResults.Problem(MalformedJsonDetails(description));
+    public static ProblemHttpResult JsonBody(JsonErrorDescription description) => TypedResults.Problem(JsonBodyDetails(description));
 
     public static ProblemDetails PayloadTooLargeDetails(long limit) =>
         Create(StatusCodes.Status413PayloadTooLarge, ProblemTypes.PayloadTooLarge, "Payload too large", $"The body is larger than the {limit} bytes accepted here.");
@@ -46,12 +49,30 @@ public static class ApiProblems
     public static ProblemHttpResult PayloadTooLarge(long limit) => TypedResults.Problem(PayloadTooLargeDetails(limit));
 
     public static ProblemHttpResult UnsupportedMediaType(string? given, params string[] accepted) =>
-        TypedResults.Problem(Create(
+        TypedResults.Problem(UnsupportedMediaTypeDetails(given, accepted));
+
+    /// <summary>
+    /// Says what to send. A form-encoded body is almost always curl's -d without a Content-Type header, so that case
+    /// names the header to add.
+    /// </summary>
+    public static ProblemDetails UnsupportedMediaTypeDetails(string? given, IReadOnlyList<string> accepted)
+    {
+        string send = string.Join(" or ", accepted.Select(a => "Content-Type: " + a));
+        string detail = given is null
+            ? $"The body has no Content-Type; send {send}."
+            : $"Content-Type '{Shorten(given)}' is not accepted here; send {send}.";
+        if (given?.StartsWith("application/x-www-form-urlencoded", StringComparison.OrdinalIgnoreCase) == true)
+        {
+            detail += $" (curl -d sends a form unless told otherwise: add -H '{send.Split(" or ")[0]}'.)";
+        }
+
+        return Create(
             StatusCodes.Status415UnsupportedMediaType,
             ProblemTypes.UnsupportedMediaType,
             "Unsupported media type",
-            $"Content-Type '{given ?? "(none)"}' is not accepted here; send {string.Join(" or ", accepted)}.",
-            [new ProblemError("Content-Type", $"must be {string.Join(" or ", accepted)}")]));
+            detail,
+            [new ProblemError("Content-Type", $"must be {string.Join(" or ", accepted)}")]);
+    }
 
     public static ProblemError ToProblemError(ValidationError error) => new(error.Path, error.Reason);
 

@@ -1,20 +1,27 @@
 using System.Text.Json;
+using System.Text.Json.Serialization.Metadata;
 using System.Text.RegularExpressions;
 
 namespace Lookahead.Api.Http;
 
 /// <summary>
 /// Turns a <see cref="JsonException"/> into a path and a plain reason. The serializer's own messages name .NET
-/// types; those are translated so nothing about the implementation leaks.
+/// types and reader options; those are translated so nothing about the implementation leaks. A body that is valid
+/// JSON of the wrong shape (a string where a number goes, an unknown or repeated member) is told apart from one that
+/// is not JSON at all: the first is a validation problem on its field, only the second is "malformed JSON".
 /// </summary>
 public static partial class JsonErrorDescriber
 {
     public const string UnknownField = "is not a known field (fields are case-sensitive; a misspelt field is refused rather than ignored)";
 
-    public static JsonErrorDescription Describe(JsonException exception, int maxDepth)
+    /// <param name="exception">What the serializer or one of our converters threw.</param>
+    /// <param name="maxDepth">The configured nesting limit, for the sentence.</param>
+    /// <param name="root">The type the body was read as, when known: an unknown member then gets the closest known name as a hint.</param>
+    public static JsonErrorDescription Describe(JsonException exception, int maxDepth, JsonTypeInfo? root = null)
     {
         string path = ToFieldPath(exception.Path);
         string reason;
+        bool syntax = false;
         if (exception is JsonFieldException field)
         {
             path = Append(path, field.RelativePath);
@@ -23,12 +30,26 @@ public static partial class JsonErrorDescriber
         else if (exception.Message.Contains("could not be mapped to any .NET member", StringComparison.Ordinal))
         {
             var name = PropertyName().Match(exception.Message);
-            if (name.Success && !path.EndsWith(name.Groups[1].Value, StringComparison.Ordinal))
+            string parent = path;
+            if (name.Success)
             {
-                path = Append(path, "." + name.Groups[1].Value);
-            }
+                string member = name.Groups[1].Value;
+                if (path.EndsWith(member, StringComparison.Ordinal))
+                {
+                    parent = path.Length > member.Length ? path[..(path.Length - member.Length)].TrimEnd('.') : "";
+                }
+                else
+                {
+                    path = Append(path, "." + member);
+                }
 
-            reason = UnknownField;
+                var known = root is null ? null : JsonMemberNames.At(root, parent);
+                reason = known is null ? UnknownField : DidYouMean.UnknownFieldReason(member, known);
+            }
+            else
+            {
+                reason = UnknownField;
+            }
         }
         else if (exception.Message.Contains("Duplicate", StringComparison.OrdinalIgnoreCase))
         {
@@ -37,19 +58,23 @@ public static partial class JsonErrorDescriber
         else if (exception.Message.Contains("maximum configured depth", StringComparison.Ordinal))
         {
             reason = $"is nested too deeply (at most {maxDepth} levels)";
+            syntax = true;
         }
         else if (ConvertedTo().Match(exception.Message) is { Success: true } converted)
         {
-            reason = "must be " + Expected(converted.Groups[1].Value);
+            // The serializer may name the enclosing record rather than the member; the metadata knows the member's type.
+            var member = root is null ? null : JsonMemberNames.TypeAt(root, path);
+            reason = "must be " + Expected(member?.Type.ToString() ?? converted.Groups[1].Value);
         }
         else
         {
-            reason = "is not valid JSON: " + Trim(exception.Message);
+            reason = SyntaxReason(exception.Message);
+            syntax = true;
         }
 
         long? line = exception.LineNumber is long l ? l + 1 : null;
         long? position = exception.BytePositionInLine is long b ? b + 1 : null;
-        return new JsonErrorDescription(new ProblemError(path, reason), line, position);
+        return new JsonErrorDescription(new ProblemError(path, reason), line, position, syntax);
     }
 
     /// <summary>"$.plant.a[0]" → "plant.a[0]"; "$" → ""; a name the serializer quotes ("$.plant['a b']") → "plant.a b".</summary>
@@ -65,21 +90,44 @@ public static partial class JsonErrorDescriber
         return dotted.StartsWith("$.", StringComparison.Ordinal) ? dotted[2..] : dotted.TrimStart('$');
     }
 
+    /// <summary>The reader's complaint in our words where we have them; otherwise its sentence without the advice about reader options.</summary>
+    private static string SyntaxReason(string message)
+    {
+        if (message.Contains("trailing comma", StringComparison.OrdinalIgnoreCase))
+        {
+            return message.Contains("array", StringComparison.OrdinalIgnoreCase)
+                ? "is not valid JSON: a comma after the last entry of an array (JSON allows none there; remove it)"
+                : "is not valid JSON: a comma after the last member of an object (JSON allows none there; remove it)";
+        }
+
+        if (message.Contains("comment", StringComparison.OrdinalIgnoreCase))
+        {
+            return "is not valid JSON: comments are not allowed";
+        }
+
+        return "is not valid JSON: " + Trim(message);
+    }
+
     private static string Append(string path, string relative) =>
         relative.Length == 0 ? path : path.Length == 0 ? relative.TrimStart('.') : path + relative;
 
-    private static string Expected(string dotnetType) => dotnetType switch
+    private static string Expected(string dotnetType)
     {
-        "System.Double" or "System.Nullable`1[System.Double]" => "a number",
-        "System.Int32" or "System.Nullable`1[System.Int32]" => "an integer",
-        "System.String" => "a string",
-        "System.Boolean" => "true or false",
-        "System.Double[]" => "an array of numbers",
-        "System.Double[][]" => "a matrix (an array of rows)",
-        "System.String[]" => "an array of strings",
-        _ when dotnetType.EndsWith("[]", StringComparison.Ordinal) || dotnetType.Contains("List", StringComparison.Ordinal) => "an array",
-        _ => "an object",
-    };
+        string type = dotnetType.Replace("System.Nullable`1", "", StringComparison.Ordinal);
+        return type switch
+        {
+            _ when type.Contains("[][]", StringComparison.Ordinal) => "a matrix (an array of rows)",
+            _ when type.Contains("Double[]", StringComparison.Ordinal) => "an array of numbers",
+            _ when type.Contains("String[]", StringComparison.Ordinal) => "an array of strings",
+            _ when type.EndsWith("[]", StringComparison.Ordinal) || type.Contains("List", StringComparison.Ordinal) => "an array",
+            _ when type.Contains("Double", StringComparison.Ordinal) => "a number",
+            _ when type.Contains("Int32", StringComparison.Ordinal) || type.Contains("Int64", StringComparison.Ordinal) => "an integer",
+            _ when type.Contains("DateTimeOffset", StringComparison.Ordinal) => "an ISO 8601 timestamp",
+            _ when type.Contains("String", StringComparison.Ordinal) => "a string",
+            _ when type.Contains("Boolean", StringComparison.Ordinal) => "true or false",
+            _ => "an object",
+        };
+    }
 
     private static string Trim(string message)
     {
@@ -90,10 +138,11 @@ public static partial class JsonErrorDescriber
         }
 
         var text = (cut >= 0 ? message[..cut] : message).Trim().TrimEnd('|').Trim();
+        text = text.Replace("Change the reader options.", "", StringComparison.Ordinal).Trim();
         return text.Replace("JSON value", "value", StringComparison.Ordinal);
     }
 
-    [GeneratedRegex("could not be converted to ([^ .]+(?:\\.[^ .]+)*?)\\. ")]
+    [GeneratedRegex("could not be converted to (.+?)\\. (?:Path|LineNumber|$)")]
     private static partial Regex ConvertedTo();
 
     [GeneratedRegex(@"\['((?:[^'\\]|\\.)*)'\]")]
@@ -103,5 +152,8 @@ public static partial class JsonErrorDescriber
     private static partial Regex PropertyName();
 }
 
-/// <summary>Where a body failed to parse: the field, and the 1-based line and byte position.</summary>
-public sealed record JsonErrorDescription(ProblemError Error, long? Line, long? Position);
+/// <summary>
+/// Where a body failed to parse: the field, the 1-based line and byte position, and whether the body is not JSON at
+/// all (<see cref="IsSyntax"/>) rather than JSON of the wrong shape.
+/// </summary>
+public sealed record JsonErrorDescription(ProblemError Error, long? Line, long? Position, bool IsSyntax = true);

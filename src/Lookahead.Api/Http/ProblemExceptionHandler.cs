@@ -28,7 +28,7 @@ public sealed partial class ProblemExceptionHandler(IProblemDetailsService probl
             BadHttpRequestException bad when BindingFailure().Match(bad.Message) is { Success: true } binding =>
                 ApiProblems.Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", "A query or route value has the wrong form.", [new ProblemError(binding.Groups["name"].Value, $"'{binding.Groups["value"].Value}' is not {Expected(binding.Groups["type"].Value)}")]),
             BadHttpRequestException bad => ApiProblems.Create(bad.StatusCode, ProblemTypes.Http, "Bad request", "The request could not be read."),
-            JsonException json => ApiProblems.MalformedJsonDetails(JsonErrorDescriber.Describe(json, limits.Value.MaxJsonDepth)),
+            JsonException json => ApiProblems.JsonBodyDetails(JsonErrorDescriber.Describe(json, limits.Value.MaxJsonDepth)),
             StoreUnavailableException unavailable => ApiProblems.Create(StatusCodes.Status503ServiceUnavailable, ProblemTypes.Unavailable, "Store unavailable", unavailable.Message),
             CompileRefusedException refused => ApiProblems.Create(StatusCodes.Status503ServiceUnavailable, ProblemTypes.Unavailable, "Compile budget spent", refused.Message),
             ModelValidationException invalid => ApiProblems.Create(StatusCodes.Status400BadRequest, ProblemTypes.Validation, "Invalid request", "The request has invalid fields; see errors.", invalid.Errors.Select(ApiProblems.ToProblemError)),

@@ -119,7 +119,7 @@ public sealed class RequestBodyReader(IOptions<JsonOptions> json, IOptions<Reque
         }
         catch (JsonException ex)
         {
-            return BodyResult<T>.Fail(ApiProblems.MalformedJson(JsonErrorDescriber.Describe(ex, limits.Value.MaxJsonDepth)));
+            return BodyResult<T>.Fail(ApiProblems.JsonBody(JsonErrorDescriber.Describe(ex, limits.Value.MaxJsonDepth, typeInfo)));
         }
     }
 }

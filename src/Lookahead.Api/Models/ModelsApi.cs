@@ -10,6 +10,17 @@ namespace Lookahead.Api.Models;
 /// <summary>Registering, reading, listing and deleting models, and their receding-horizon gain.</summary>
 public static class ModelsApi
 {
+    /// <summary>The models room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddModels(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.CloseSet<ModelRegistrationResponse>("timeDomain", CatalogServices.TimeDomains);
+            o.CloseSet<EstimatorDiagnosticsDto>("disturbanceModel", CatalogServices.DisturbanceModels);
+        });
+        return services;
+    }
+
     public static RouteGroupBuilder MapModelsApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Models").RequireRateLimiting(RateLimitPolicy.Name);
@@ -17,6 +28,7 @@ public static class ModelsApi
         group.MapPost("", RegisterAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("RegisterModel")
+            .WithRequestExample("""{"name":"double-integrator","plant":{"a":[[1,0.1],[0,1]],"b":[[0.005],[0.1]],"sampleTime":0.1,"timeDomain":"discrete"},"cost":{"horizon":10,"outputWeight":[[1,0],[0,0.1]],"inputWeight":[0.01],"terminalWeight":"riccati"},"limits":{"inputMin":[-1],"inputMax":[1]}}""")
             .WithSummary("Register a plant-and-cost model; its id is the SHA-256 of its canonical form")
             .Accepts<ModelDocumentDto>("application/json")
             .ProducesBodyProblems();
@@ -24,18 +36,23 @@ public static class ModelsApi
         group.MapGet("", ListAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("ListModels")
+            .WithParameterExample("offset", "0")
+            .WithParameterExample("limit", "50")
             .WithSummary("List registered models in registration order, a page at a time")
             .ProducesProblem(StatusCodes.Status400BadRequest);
 
         group.MapGet("/{id}", GetAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModel")
-            .WithSummary("A registered model's document, dimensions and diagnostics")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithSummary("A registered model's document, dimensions and diagnostics; cacheable (ETag, immutable), 304 on a matching If-None-Match")
+            .Produces(StatusCodes.Status304NotModified)
             .ProducesLookupProblems();
 
         group.MapDelete("/{id}", DeleteAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("DeleteModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithSummary("Delete a model (refused while an alias points at it)")
             .ProducesLookupProblems()
             .ProducesProblem(StatusCodes.Status409Conflict);
@@ -43,6 +60,7 @@ public static class ModelsApi
         group.MapGet("/{id}/gain", GetGainAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("GetModelGain")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithSummary("The receding-horizon gain K (u0 = −K x0), closed-loop eigenvalues and spectral radius")
             .ProducesLookupProblems();
 
@@ -88,7 +106,7 @@ public static class ModelsApi
         return TypedResults.Ok(new ModelPage(items, from, size, listing.Total));
     }
 
-    public static async Task<Results<Ok<ModelDetailsResponse>, ProblemHttpResult>> GetAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
+    public static async Task<Results<Ok<ModelDetailsResponse>, StatusCodeHttpResult, ProblemHttpResult>> GetAsync(string id, HttpContext context, ModelCatalog catalog, CancellationToken cancellationToken)
     {
         if (!ModelId.IsWellFormed(id))
         {
@@ -97,12 +115,24 @@ public static class ModelsApi
 
         string? tenant = Tenants.Reading(context);
         var found = await catalog.GetStoredAsync(tenant, id, cancellationToken);
+        if (found is { } registered)
+        {
+            // Answered before the compiled model is looked up, so a revalidation never costs a compile.
+            var tag = ModelCaching.Tag(id, registered.Stored.Summary.RegisteredAt);
+            if (ModelCaching.IsFresh(context.Request, tag))
+            {
+                ModelCaching.Describe(context.Response, tag);
+                return TypedResults.StatusCode(StatusCodes.Status304NotModified);
+            }
+        }
+
         var model = found is null ? null : await catalog.GetCompiledAsync(tenant, id);
         if (found is not { } stored || model is null)
         {
             return ModelProblems.ModelNotFound(id);
         }
 
+        ModelCaching.Describe(context.Response, ModelCaching.Tag(id, stored.Stored.Summary.RegisteredAt));
         return TypedResults.Ok(ModelResponses.Details(id, stored, model));
     }
 

@@ -11,6 +11,12 @@ namespace Lookahead.Api.Plans;
 /// </summary>
 public static class PlanRequestParser
 {
+    /// <summary>The members of a plan request, for "did you mean" hints.</summary>
+    internal static readonly string[] Fields = ["state", "reference", "previousInput", "disturbance", "estimate"];
+
+    /// <summary>The members of an estimate.</summary>
+    internal static readonly string[] EstimateFields = ["state", "disturbance"];
+
     /// <param name="json">The request's bytes.</param>
     /// <param name="row">Receives the vectors, or the errors with their paths.</param>
     /// <param name="pathPrefix">Prepended to every error path ("" for /plan, "requests[3]." inside a replay body).</param>
@@ -27,6 +33,7 @@ public static class PlanRequestParser
             }
 
             bool sawState = false, sawReference = false, sawPrevious = false, sawDisturbance = false, sawEstimate = false;
+            bool misspeltStart = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
                 JsonText.CheckName(ref reader);
@@ -81,7 +88,12 @@ public static class PlanRequestParser
                 }
                 else
                 {
-                    row.AddError(pathPrefix + JsonText.GetString(ref reader), JsonErrorDescriber.UnknownField);
+                    string name = JsonText.GetString(ref reader);
+                    string? hint = DidYouMean.Closest(name, Fields);
+
+                    // A misspelt state or estimate is the one mistake: saying the state is missing too would send the client looking for a second.
+                    misspeltStart |= hint is "state" or "estimate";
+                    row.AddError(pathPrefix + name, DidYouMean.UnknownFieldReason(name, Fields));
                     reader.Read();
                     reader.Skip();
                 }
@@ -96,7 +108,7 @@ public static class PlanRequestParser
             {
                 row.AddError(pathPrefix + "estimate", "give a measured state or an estimate, not both");
             }
-            else if (!sawState && !sawEstimate)
+            else if (!sawState && !sawEstimate && !misspeltStart)
             {
                 row.AddError(pathPrefix + "state", "is required (or an estimate from the model's estimator)");
             }
@@ -105,7 +117,10 @@ public static class PlanRequestParser
         {
             var description = JsonErrorDescriber.Describe(ex, maxDepth);
             row.AddError(Trimmed(pathPrefix), description.Error.Reason);
-            row.SyntaxErrorAt = (description.Line ?? 1, description.Position ?? 1);
+            if (description.IsSyntax)
+            {
+                row.SyntaxErrorAt = (description.Line ?? 1, description.Position ?? 1);
+            }
         }
     }
 
@@ -246,7 +261,8 @@ public static class PlanRequestParser
             }
             else
             {
-                row.AddError($"{path}.{JsonText.GetString(ref reader)}", JsonErrorDescriber.UnknownField);
+                string name = JsonText.GetString(ref reader);
+                row.AddError($"{path}.{name}", DidYouMean.UnknownFieldReason(name, EstimateFields));
                 reader.Read();
                 reader.Skip();
             }

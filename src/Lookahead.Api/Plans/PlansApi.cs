@@ -23,9 +23,17 @@ public static class PlansApi
         }));
         services.ConfigureSwaggerGen(o => o.MapType<VectorOrRows>(() => new Microsoft.OpenApi.OpenApiSchema
         {
-            Description = "One vector held over the horizon, or 1…N rows (row k for step k), the last row held to the end.",
-            OneOf = [OpenApiSchemas.Vector(), OpenApiSchemas.Matrix()],
+            Description = "1…N rows (row k for step k, the last row held to the end), or one vector held over the horizon.",
+
+            // Rows first: generators that type a union by its first alternative can then send schedules (one row is a held vector).
+            OneOf = [OpenApiSchemas.Matrix(), OpenApiSchemas.Vector()],
         }));
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.CloseSet<PlanResponse>("status", WarningCodes.PlanStatuses);
+            o.CloseSet<ActiveLimitDto>("kind", WarningCodes.LimitKinds);
+            o.RequireMembers<Estimation.StateEstimateDto>("state");
+        });
         return services;
     }
 
@@ -37,6 +45,8 @@ public static class PlansApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0],"disturbance":[[18],[19],[20]],"reference":[-20,-20,-20]}""")
             .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
             .Accepts<PlanRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())
@@ -111,7 +121,7 @@ public static class PlansApi
                 PlanRequestParser.Parse(bytes, call, "", depth);
                 if (call.SyntaxErrorAt is { } at)
                 {
-                    return BodyResult<PlanCall>.Fail(ApiProblems.MalformedJson(new JsonErrorDescription(call.Errors[0], at.Line, at.Position)));
+                    return BodyResult<PlanCall>.Fail(ApiProblems.JsonBody(new JsonErrorDescription(call.Errors[0], at.Line, at.Position)));
                 }
 
                 return call.Errors.Count > 0 ? BodyResult<PlanCall>.Fail(ApiProblems.Validation(call.Errors)) : BodyResult<PlanCall>.Ok(call);

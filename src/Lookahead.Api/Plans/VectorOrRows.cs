@@ -21,7 +21,7 @@ public sealed class VectorOrRowsConverter : JsonConverter<VectorOrRows>
         var root = document.RootElement;
         if (root.ValueKind != JsonValueKind.Array)
         {
-            throw new JsonException("must be an array of numbers, or an array of rows");
+            throw new JsonFieldException("must be an array of numbers, or an array of rows");
         }
 
         bool rows = root.GetArrayLength() > 0 && root[0].ValueKind == JsonValueKind.Array;

@@ -11,6 +11,9 @@ namespace Lookahead.Api.Replay;
 /// </summary>
 internal static class EstimationRowParser
 {
+    /// <summary>The members of an estimation row, for "did you mean" hints.</summary>
+    private static readonly string[] Fields = ["measurement", "appliedInput", "reference", "disturbance"];
+
     /// <param name="json">The row's bytes.</param>
     /// <param name="row">Receives the vectors, or the errors with their paths.</param>
     /// <param name="pathPrefix">Prepended to every error path ("" for NDJSON, "requests[3]." inside a JSON body).</param>
@@ -27,6 +30,7 @@ internal static class EstimationRowParser
             }
 
             bool sawMeasurement = false, sawApplied = false, sawReference = false, sawDisturbance = false, applied = false;
+            bool misspeltMeasurement = false, misspeltApplied = false;
             while (reader.Read() && reader.TokenType == JsonTokenType.PropertyName)
             {
                 JsonText.CheckName(ref reader);
@@ -70,7 +74,13 @@ internal static class EstimationRowParser
                 }
                 else
                 {
-                    row.AddError(pathPrefix + JsonText.GetString(ref reader), JsonErrorDescriber.UnknownField);
+                    string name = JsonText.GetString(ref reader);
+                    string? hint = DidYouMean.Closest(name, Fields);
+
+                    // The misspelt member is the mistake; "measurement is required" beside it would be a second, misleading one.
+                    misspeltMeasurement |= hint == "measurement";
+                    misspeltApplied |= hint == "appliedInput";
+                    row.AddError(pathPrefix + name, DidYouMean.UnknownFieldReason(name, Fields));
                     reader.Read();
                     reader.Skip();
                 }
@@ -81,12 +91,12 @@ internal static class EstimationRowParser
                 row.AddError(pathPrefix.TrimEnd('.'), "has content after the end of the object");
             }
 
-            if (!sawMeasurement)
+            if (!sawMeasurement && !misspeltMeasurement)
             {
                 row.AddError(pathPrefix + "measurement", "is required (null when the reading is missing)");
             }
 
-            if (!applied)
+            if (!applied && !misspeltApplied)
             {
                 row.AddError(pathPrefix + "appliedInput", "is required (the input held since the previous row)");
             }
@@ -95,7 +105,10 @@ internal static class EstimationRowParser
         {
             var description = JsonErrorDescriber.Describe(ex, maxDepth);
             row.AddError(pathPrefix.TrimEnd('.'), description.Error.Reason);
-            row.SyntaxErrorAt = (description.Line ?? 1, description.Position ?? 1);
+            if (description.IsSyntax)
+            {
+                row.SyntaxErrorAt = (description.Line ?? 1, description.Position ?? 1);
+            }
         }
     }
 

@@ -209,7 +209,7 @@ internal sealed class JsonRequestsSource(PipeReader reader, int maxRowBytes, int
                         {
                             if (value != Detail)
                             {
-                                Warnings.Add(new WarningDto("detail-after-requests", $"'detail' came after 'requests' and was ignored; results were written as '{Detail ?? "first-move"}'. Send it first, or use ?detail="));
+                                Warnings.Add(new WarningDto(WarningCodes.DetailAfterRequests, $"'detail' came after 'requests' and was ignored; results were written as '{Detail ?? "first-move"}'. Send it first, or use ?detail="));
                             }
                         }
                         else

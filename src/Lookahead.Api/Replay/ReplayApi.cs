@@ -23,6 +23,17 @@ public static class ReplayApi
         services.AddOptions<ReplayOptions>().BindConfiguration(ReplayOptions.Section).ValidateDataAnnotations().ValidateOnStart();
         services.AddSingleton<ReplayMetrics>();
         services.AddSingleton<ReplayRunner>();
+        services.ConfigureSwaggerGen(o =>
+        {
+            string[] details = [ReplayDetails.Name(ReplayDetail.FirstMove), ReplayDetails.Name(ReplayDetail.Full)];
+            o.RequireMembers<ReplayRequest>("requests");
+            o.CloseSet<ReplayRequest>("detail", details);
+            o.CloseSet<ReplayResponse>("detail", details);
+            o.CloseSet<ReplayResponse>("reason", [ReplaySummary.ShutdownReason]);
+            o.CloseSet<ReplayRowResult>("status", WarningCodes.PlanStatuses.Append("error"));
+            o.CloseQuerySet("ReplayPlans", "detail", details);
+            o.OperationFilter<ReplayMediaTypesOperationFilter>();
+        });
         return services;
     }
 
@@ -34,6 +45,10 @@ public static class ReplayApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("ReplayPlans")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"detail":"first-move","requests":[{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0]},{"state":[-17.7,-18.6,-19.5],"previousInput":[50,50,0]}]}""")
+            .WithRequestExample("{\"state\":[-17.5,-18.5,-19.5],\"previousInput\":[30,30,0]}\n{\"state\":[-17.7,-18.6,-19.5],\"previousInput\":[50,50,0]}\n", ReplayApi.NdjsonContentType)
+            .WithRequestExample("timestamp,zone_a_temp,zone_b_temp,zone_c_temp,prev_chiller_1,prev_chiller_2,prev_door_fan\n2026-12-01T06:00:00Z,-17.5,-18.5,-19.5,30,30,0\n2026-12-01T06:01:00Z,-17.7,-18.6,-19.5,50,50,0\n", ReplayApi.CsvContentType)
             .WithSummary("Plan every state of a JSON, NDJSON or CSV upload; results stream back in input order")
             .Accepts<ReplayRequest>(JsonContentType, NdjsonContentType, CsvContentType)
             .Produces<ReplayResponse>(StatusCodes.Status200OK, JsonContentType, NdjsonContentType, CsvContentType)
@@ -123,7 +138,7 @@ public static class ReplayApi
                 {
                     await reader.CompleteAsync();
                     return error.Reason.StartsWith("is not valid JSON", StringComparison.Ordinal)
-                        ? ApiProblems.MalformedJson(new JsonErrorDescription(error, null, null))
+                        ? ApiProblems.JsonBody(new JsonErrorDescription(error, null, null))
                         : ApiProblems.Validation([error], "The replay body is not { \"detail\"?, \"requests\": [ … ] }; no row was processed.");
                 }
 

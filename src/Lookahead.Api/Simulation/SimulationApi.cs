@@ -11,6 +11,23 @@ namespace Lookahead.Api.Simulation;
 /// <summary>Closed-loop simulation: what the controller would do over time, optionally against a different true plant.</summary>
 public static class SimulationApi
 {
+    /// <summary>The simulation room's part of the OpenAPI contract.</summary>
+    public static IServiceCollection AddSimulation(this IServiceCollection services)
+    {
+        services.ConfigureSwaggerGen(o =>
+        {
+            o.RequireMembers<SimulationRequestDto>("initialState", "steps");
+            o.CloseSet<SimulationRequestDto>("feedback", ["state", "estimate"]);
+            o.RequireMembers<ReferenceChangeDto>("fromStep", "reference");
+            o.RequireMembers<MeasuredDisturbanceChangeDto>("fromStep", "disturbance");
+            o.RequireMembers<OutputDisturbanceChangeDto>("fromStep", "offset");
+            o.RequireMembers<MeasurementNoiseDto>("standardDeviation");
+            o.RequireMembers<TruePlantDto>("a", "b");
+            o.CloseSet<TruePlantDto>("timeDomain", Catalog.CatalogServices.TimeDomains);
+        });
+        return services;
+    }
+
     public static RouteGroupBuilder MapSimulationApi(this IEndpointRouteBuilder routes)
     {
         var group = routes.MapGroup("/v1/models").WithTags("Simulation").RequireRateLimiting(RateLimitPolicy.Name);
@@ -19,6 +36,8 @@ public static class SimulationApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("SimulateModel")
+            .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
+            .WithRequestExample("""{"initialState":[-17.5,-18.5,-19.5],"steps":60,"previousInput":[20,20,0],"references":[{"fromStep":0,"reference":[-20,-20,-20]},{"fromStep":30,"reference":[-21.5,-21,-21]}]}""")
             .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
             .Accepts<SimulationRequestDto>("application/json")
             .WithMetadata(new SvgAlternativeMetadata())

@@ -27,6 +27,17 @@ public static class StationsApi
 
         // Both stores keep stations beside their models, on the same connections and durability settings.
         services.AddSingleton(sp => (IStationStore)sp.GetRequiredService<IModelStore>());
+        services.ConfigureSwaggerGen(o =>
+        {
+            string[] details = [StationDetail.FirstMove, StationDetail.Full];
+            o.RequireMembers<StationRequest>("model");
+            o.CloseSet<StationRequest>("detail", details);
+            o.CloseSet<StationResponse>("detail", details);
+            o.RequireMembers<StationStepRequest>("sequence");
+            o.CloseSet<StationStepRequest>("mode", [StationStep.Auto, StationStep.Track]);
+            o.CloseSet<StationStepResponse>("status", WarningCodes.PlanStatuses.Append(StationStep.TrackingStatus));
+            o.CloseQuerySet("GetStationSteps", "format", ["json", "csv"]);
+        });
         return services;
     }
 
@@ -37,27 +48,35 @@ public static class StationsApi
 
         group.MapPut("/{name}", PutAsync)
             .WithName("PutStation")
+            .WithParameterExample("name", "dock-loop")
+            .WithRequestExample("""{"model":"cold-store-demo","detail":"first-move"}""")
             .WithSummary("Bind a station to a model (id or alias name) with a fresh state; replacing one starts it over")
             .Accepts<StationRequest>("application/json")
             .ProducesBodyProblems();
 
         group.MapGet("", ListAsync)
             .WithName("ListStations")
+            .WithParameterExample("offset", "0")
+            .WithParameterExample("limit", "50")
             .WithSummary("List stations in name order, a page at a time")
             .ProducesProblem(StatusCodes.Status400BadRequest);
 
         group.MapGet("/{name}", GetAsync)
             .WithName("GetStation")
+            .WithParameterExample("name", "dock-loop")
             .WithSummary("A station's model, estimate, last applied input, last suggested move and sequence")
             .ProducesLookupProblems();
 
         group.MapDelete("/{name}", DeleteAsync)
             .WithName("DeleteStation")
+            .WithParameterExample("name", "dock-loop")
             .WithSummary("Delete a station and its state")
             .ProducesLookupProblems();
 
         group.MapGet("/{name}/steps", StationHistoryEndpoint.GetStepsAsync)
             .WithName("GetStationSteps")
+            .WithParameterExample("name", "dock-loop")
+            .WithParameterExample("limit", "100")
             .WithSummary("A station's most recent steps, oldest first: what each asked and answered (?format=csv for a table)")
             .Produces<StationStepHistory>(StatusCodes.Status200OK, "application/json")
             .Produces<string>(StatusCodes.Status200OK, StationHistoryCsv.ContentType)
@@ -66,6 +85,8 @@ public static class StationsApi
         group.MapPost("/{name}/step", StationStepEndpoint.StepAsync)
             .IsSolverWork()
             .WithName("StepStation")
+            .WithParameterExample("name", "dock-loop")
+            .WithRequestExample("""{"sequence":0,"measurement":[-19.2,-19.6,-19.9],"appliedInput":[30,30,0],"disturbance":[15],"timestamp":"2026-12-02T06:00:00Z"}""")
             .WithSummary("One sample: update the station's estimate with the measurement and suggest the next move")
             .Accepts<StationStepRequest>("application/json")
             .ProducesBodyProblemsForModel()

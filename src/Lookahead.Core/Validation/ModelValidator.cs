@@ -114,12 +114,22 @@ public static class ModelValidator
                 return null;
             }
 
+            int before = errors.Count;
             CheckRectangular(plant.A, "plant.a", n, n, errors);
-            m = ColumnCountOf(plant.B, "plant.b", n, errors);
-            if (m > limits.MaxInputs)
+            if (errors.Count > before)
             {
-                errors.Add(new("plant.b", $"has {m} inputs; at most {limits.MaxInputs} are allowed"));
-                return null;
+                // A that is not square leaves the number of states unknown: checking B, C, E, the weights and the
+                // limits against its row count would only report the same mistake again, in fields that may be right.
+                n = -1;
+            }
+            else
+            {
+                m = ColumnCountOf(plant.B, "plant.b", n, errors);
+                if (m > limits.MaxInputs)
+                {
+                    errors.Add(new("plant.b", $"has {m} inputs; at most {limits.MaxInputs} are allowed"));
+                    return null;
+                }
             }
         }
 

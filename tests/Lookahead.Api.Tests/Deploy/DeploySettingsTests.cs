@@ -65,7 +65,7 @@ public class DeploySettingsTests(DeployFixture deploy)
 
         Assert.Empty(surface.UnboundSectionTypes);
         Assert.Equal(
-            ["Auth", "Cache", "Compile", "Demo", "Diagnostics", "Limits", "Planning", "Proxies", "RateLimiting", "Replay", "Shutdown", "Stations", "Store", "Telemetry"],
+            ["Auth", "Cache", "Compile", "Cors", "Demo", "Diagnostics", "Limits", "Planning", "Proxies", "RateLimiting", "Replay", "Shutdown", "Stations", "Store", "Telemetry"],
             surface.Sections.Select(s => s.Section).Order(StringComparer.Ordinal));
     }
 
