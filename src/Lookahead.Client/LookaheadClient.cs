@@ -110,6 +110,7 @@ public sealed partial class LookaheadClient : IDisposable
     {
         for (int attempt = 1; ; attempt++)
         {
+            cancellationToken.ThrowIfCancellationRequested();
             using var request = new HttpRequestMessage(method, Address(relative));
             if (payload is not null)
             {
