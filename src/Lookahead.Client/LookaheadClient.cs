@@ -21,19 +21,15 @@ public sealed partial class LookaheadClient : IDisposable
 
     /// <summary>Uses the given HttpClient (not disposed with this client); its BaseAddress applies unless the options give one.</summary>
     public LookaheadClient(HttpClient http, LookaheadClientOptions? options = null)
-        : this(http, options ?? new LookaheadClientOptions(), ownsHttp: false)
+        : this(http, options, disposeHttpClient: false)
     {
     }
 
-    /// <summary>Talks to the service at <paramref name="baseAddress"/> with an HttpClient of its own.</summary>
-    public LookaheadClient(Uri baseAddress, string? apiKey = null)
-        : this(new HttpClient(), new LookaheadClientOptions { BaseAddress = baseAddress, ApiKey = apiKey }, ownsHttp: true)
-    {
-    }
-
-    private LookaheadClient(HttpClient http, LookaheadClientOptions options, bool ownsHttp)
+    /// <summary>Uses the given HttpClient and disposes it with this client when <paramref name="disposeHttpClient"/> is true.</summary>
+    public LookaheadClient(HttpClient http, LookaheadClientOptions? options, bool disposeHttpClient)
     {
         ArgumentNullException.ThrowIfNull(http);
+        options ??= new LookaheadClientOptions();
         if (options.MaxAttempts < 1)
         {
             throw new ArgumentOutOfRangeException(nameof(options), "MaxAttempts must be at least 1");
@@ -41,17 +37,18 @@ public sealed partial class LookaheadClient : IDisposable
 
         this.http = http;
         this.options = options;
-        this.ownsHttp = ownsHttp;
+        ownsHttp = disposeHttpClient;
         var address = options.BaseAddress ?? http.BaseAddress
             ?? throw new ArgumentException("Give the service's address in the options or as the HttpClient's BaseAddress", nameof(options));
 
         // A base address without a trailing slash would drop its last segment when relative paths are added.
         baseAddress = address.AbsoluteUri.EndsWith('/') ? address : new Uri(address.AbsoluteUri + "/");
-        if (http.Timeout != Timeout.InfiniteTimeSpan && ownsHttp)
-        {
-            // A long replay streams for as long as it takes; callers bound calls with their tokens.
-            http.Timeout = Timeout.InfiniteTimeSpan;
-        }
+    }
+
+    /// <summary>Talks to the service at <paramref name="baseAddress"/> with an HttpClient of its own.</summary>
+    public LookaheadClient(Uri baseAddress, string? apiKey = null)
+        : this(new HttpClient { Timeout = Timeout.InfiniteTimeSpan }, new LookaheadClientOptions { BaseAddress = baseAddress, ApiKey = apiKey }, disposeHttpClient: true)
+    {
     }
 
     public void Dispose()
