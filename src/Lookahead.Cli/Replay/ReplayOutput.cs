@@ -16,11 +16,14 @@ public sealed class ReplayOutput : IAsyncDisposable
     private readonly CsvWriter csv;
     private readonly CsvDialect dialect;
     private readonly IReadOnlySet<string> passThrough;
+    private readonly long rowOffset;
     private string[]? header;
     private bool[]? convert;
+    private int messageColumn = -1;
 
-    private ReplayOutput(FileStream file, CsvWriter csv, CsvDialect dialect, IReadOnlySet<string> passThrough, string[]? header)
+    private ReplayOutput(FileStream file, CsvWriter csv, CsvDialect dialect, IReadOnlySet<string> passThrough, string[]? header, long rowOffset)
     {
+        this.rowOffset = rowOffset;
         this.file = file;
         this.csv = csv;
         this.dialect = dialect;
@@ -41,7 +44,7 @@ public sealed class ReplayOutput : IAsyncDisposable
             Injection = CsvInjection.None,
             ValidateFieldCount = false,
         }, leaveOpen: true);
-        return new ReplayOutput(file, csv, dialect, passThrough, resume.Header);
+        return new ReplayOutput(file, csv, dialect, passThrough, resume.Header, resume.Rows);
     }
 
     public async Task WriteAsync(CsvReplayRecord record, CancellationToken cancellationToken)
@@ -65,15 +68,28 @@ public sealed class ReplayOutput : IAsyncDisposable
             }
 
             convert = answer.Select(name => dialect.DecimalComma && !passThrough.Contains(name) && name is not "status" and not "message").ToArray();
+            messageColumn = Array.IndexOf(answer, "message");
         }
 
         for (int i = 0; i < record.Fields.Count; i++)
         {
-            string field = record.Fields[i];
+            string field = i == messageColumn ? InputRowNumbers(record.Fields[i], record.Row) : record.Fields[i];
             csv.WriteField(i < convert.Length && convert[i] ? field.Replace('.', ',') : field);
         }
 
         await csv.EndRecordAsync(cancellationToken);
+    }
+
+    /// <summary>
+    /// The service numbers rows from the start of this upload; after a resume the upload starts past the rows already
+    /// written, so an error's "row N:" is moved on to count rows of the input file, as an uninterrupted run would.
+    /// </summary>
+    private string InputRowNumbers(string message, long row)
+    {
+        string prefix = FormattableString.Invariant($"row {row}: ");
+        return rowOffset > 0 && message.StartsWith(prefix, StringComparison.Ordinal)
+            ? FormattableString.Invariant($"row {row + rowOffset}: ") + message[prefix.Length..]
+            : message;
     }
 
     /// <summary>The closing record, as the service writes it, counting every row of the output (earlier runs included).</summary>
