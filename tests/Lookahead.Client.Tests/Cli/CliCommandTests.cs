@@ -68,6 +68,13 @@ public class CliCommandTests
             Assert.Equal(expected.FirstMove[j], move[j], 8);
         }
 
+        // By id, with the service's chart beside it.
+        using var folder = new TempFolder();
+        var (byId, byIdOutput) = await Support.Cli.RunAsync(service, "plan", expected.ModelId, "--state=-17.5,-18.5,-19.5", "--previous-input=30,30,0", "--svg", folder.File("plan.svg"));
+        Assert.True(byId == 0, byIdOutput);
+        Assert.Equal(Support.Cli.Line(output, "first move"), Support.Cli.Line(byIdOutput, "first move"));
+        Assert.StartsWith("<svg", (await File.ReadAllTextAsync(folder.File("plan.svg"))).TrimStart(), StringComparison.Ordinal);
+
         var (bad, said) = await Support.Cli.RunAsync(service, "plan", Demo.Alias, "--state=-17.5,oops,-19.5");
         Assert.Equal(2, bad);
         Assert.Contains("'oops' is not a number", said, StringComparison.Ordinal);
