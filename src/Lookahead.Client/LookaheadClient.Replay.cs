@@ -34,7 +34,8 @@ public sealed partial class LookaheadClient
 
     /// <summary>
     /// Replays a CSV stream (state columns by label, <c>prev_</c>, <c>r_</c>, <c>v_</c>, or <c>y_</c> and
-    /// <c>applied_</c> for an estimation replay; other columns pass through); the stream is not disposed.
+    /// <c>applied_</c> for an estimation replay; other columns pass through); the stream is not disposed. A record is
+    /// handed over once the reader has seen past its line end, i.e. when the next record (or the summary) begins.
     /// </summary>
     public ReplayStream<CsvReplayRecord> ReplayCsvAsync(string modelId, Stream csv, CancellationToken cancellationToken = default)
     {
