@@ -149,7 +149,9 @@ public static class ClosedLoopSimulator
             inputs[k] = u;
             if (references is not null)
             {
-                references[k] = reference ?? new double[p];
+                // A copy per step: the schedule's rows are shared by every step they cover, and the result's rows are
+                // shifted in place to engineering units afterwards.
+                references[k] = reference is null ? new double[p] : (double[])reference.Clone();
             }
 
             total += evaluator.StageCost(outputs[k], u, reference, plan.Target?.Input, previous);

@@ -116,6 +116,9 @@ public class SimulationFeedbackTests
             previous = u;
         }
 
+        // Each step's reference row reads as given, in engineering units, however many steps share it.
+        Assert.All(result.References!, r => Assertions.Close(reference, r, 1e-12, "reference"));
+
         // The disturbance mattered: without it the run is different.
         var undisturbed = ClosedLoopSimulator.Simulate(model, new SimulationRequest([2.0, 3.0], steps, [new ReferenceChange(0, reference)], PreviousInput: [1.0, 1.0]));
         Assert.True(Math.Abs(undisturbed.Inputs[10][0] - result.Inputs[10][0]) > 1e-3, "the measured disturbance should change the moves");
