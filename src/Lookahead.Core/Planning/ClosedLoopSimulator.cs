@@ -149,7 +149,8 @@ public static class ClosedLoopSimulator
             inputs[k] = u;
             if (references is not null)
             {
-                references[k] = reference ?? new double[p];
+                // A copy: the schedule's row is shared by every step it covers, and the result is shifted row by row afterwards.
+                references[k] = reference is null ? new double[p] : (double[])reference.Clone();
             }
 
             total += evaluator.StageCost(outputs[k], u, reference, plan.Target?.Input, previous);
