@@ -46,9 +46,9 @@ public static class AliasesApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("PlanForAlias")
-            .WithSummary("Plan with the model the alias points at now; the answer names that model")
+            .WithSummary("Plan with the model the alias points at now; the answer names that model (?format=svg or csv as for a plan)")
             .Accepts<PlanRequestDto>("application/json")
-            .WithMetadata(new SvgAlternativeMetadata())
+            .WithMetadata(new SvgAlternativeMetadata(), new CsvAlternativeMetadata())
             .ProducesBodyProblemsForModel();
 
         return group;

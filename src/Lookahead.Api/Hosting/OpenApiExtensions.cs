@@ -33,6 +33,7 @@ public static class OpenApiExtensions
                 [new OpenApiSecuritySchemeReference(Access.ApiKeyAuthentication.SchemeName, document)] = [],
             });
             o.OperationFilter<SvgResponseFilter>();
+            o.OperationFilter<CsvResponseFilter>();
         });
         return services;
     }

@@ -19,9 +19,9 @@ public static class SimulationApi
             .IsSolverWork()
             .RequireScope(AccessScopes.PlansRun)
             .WithName("SimulateModel")
-            .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
+            .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart, ?format=csv for a table)")
             .Accepts<SimulationRequestDto>("application/json")
-            .WithMetadata(new SvgAlternativeMetadata())
+            .WithMetadata(new SvgAlternativeMetadata(), new CsvAlternativeMetadata())
             .ProducesBodyProblemsForModel();
 
         return group;
@@ -71,6 +71,11 @@ public static class SimulationApi
         {
             var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
+        }
+
+        if (responseFormat == ResponseFormat.Csv)
+        {
+            return TypedResults.Text(TrajectoryCsv.Simulation(model!, result), TrajectoryCsv.ContentType);
         }
 
         return TypedResults.Ok(SimulationMapping.ToResponse(id, model!, result));
