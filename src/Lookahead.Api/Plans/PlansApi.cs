@@ -98,7 +98,7 @@ public static class PlansApi
                 return TypedResults.Text(TrajectoryCsv.Plan(model, outputs, references, inputs, states, WireNames.Status(plan.Status)), TrajectoryCsv.ContentType);
             }
 
-            var chart = TrajectoryChart.Build($"Plan for {model.Document.Name ?? id[..12]} ({WireNames.Status(plan.Status)})", model, outputs, inputs, references);
+            var chart = TrajectoryChart.Build($"Plan for {model.Document.Name ?? id[..12]} ({WireNames.Status(plan.Status)})", model, outputs, inputs, references, previousInput: call.HasPreviousInput ? call.PreviousInput : null);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
         }
 

@@ -69,7 +69,7 @@ public static class SimulationApi
         services.Metrics.SimulatedPlans.WithLabels("not-optimal").Inc(result.NonOptimalSteps);
         if (responseFormat == ResponseFormat.Svg)
         {
-            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs);
+            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs, simulation.PreviousInput);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
         }
 
