@@ -137,7 +137,10 @@ public static class SvgChartWriter
             if (series.IsLimit && series.ValueLabel is not null && series.Y.Length > 0 && double.IsFinite(series.Y[0]))
             {
                 // The value at the line's right end, above an upper limit and below a lower one.
-                double valueY = series.Style == LineStyle.LimitMax ? Y(series.Y[0]) - 4 : Y(series.Y[0]) + 13;
+                // Flipped to the inside when the line runs along the plot's edge, clear of the tick labels.
+                double lineY = Y(series.Y[0]);
+                bool above = series.Style == LineStyle.LimitMax ? lineY - 14 > plotTop : lineY + 14 > plotTop + plotHeight;
+                double valueY = above ? lineY - 4 : lineY + 13;
                 writer.WriteStartElement("text");
                 Attr(writer, "x", Left + plotWidth - 4);
                 Attr(writer, "y", valueY);

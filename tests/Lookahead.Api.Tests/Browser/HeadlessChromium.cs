@@ -35,8 +35,19 @@ public static class HeadlessChromium
         service.HideCommandPromptWindow = true;
         var driver = new ChromeDriver(service, options, TimeSpan.FromSeconds(60));
         driver.Manage().Timeouts().PageLoad = TimeSpan.FromSeconds(30);
+        SetViewport(driver, width, height);
         return driver;
     }
+
+    /// <summary>The page's own size (the window's --window-size counts the browser's frame too).</summary>
+    public static void SetViewport(ChromeDriver driver, int width, int height) =>
+        driver.ExecuteCdpCommand("Emulation.setDeviceMetricsOverride", new Dictionary<string, object?>
+        {
+            ["width"] = width,
+            ["height"] = height,
+            ["deviceScaleFactor"] = 1,
+            ["mobile"] = false,
+        });
 
     public static string ArtifactsFolder()
     {

@@ -94,6 +94,18 @@ public class TuningPageTests
         ((IJavaScriptExecutor)driver).ExecuteScript("document.getElementById('results').scrollIntoView()");
         string shot = HeadlessChromium.SaveScreenshot(driver, "tuning-page.png");
         Assert.True(new FileInfo(shot).Length > 10_000, $"the screenshot {shot} is suspiciously small");
+        var size = (IReadOnlyCollection<object>)((IJavaScriptExecutor)driver).ExecuteScript("return [window.innerWidth, window.innerHeight]")!;
+        Assert.Equal([1280L, 800L], size.Cast<long>());
+
+        // A narrow screen: everything in one column, nothing wider than the screen.
+        HeadlessChromium.SetViewport(driver, 390, 844);
+        var widths = (IReadOnlyCollection<object>)((IJavaScriptExecutor)driver).ExecuteScript("return [document.documentElement.scrollWidth, window.innerWidth]")!;
+        Assert.Equal(390L, widths.Cast<long>().Last());
+        string widest = (string)((IJavaScriptExecutor)driver).ExecuteScript(
+            "return [...document.querySelectorAll('body *')].filter(e => e.getBoundingClientRect().right > window.innerWidth + 0.5)" +
+            ".slice(0, 8).map(e => `${e.tagName.toLowerCase()}#${e.id}.${e.className?.baseVal ?? e.className} ${Math.round(e.getBoundingClientRect().right)}`).join('; ')")!;
+        Assert.True(widths.Cast<long>().First() <= 390, $"the page is {widths.First()} px wide on a 390 px screen: {widest}");
+        HeadlessChromium.SaveScreenshot(driver, "tuning-page-narrow.png");
     }
 
     [BrowserFact]
