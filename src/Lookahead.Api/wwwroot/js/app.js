@@ -33,17 +33,25 @@ function explain(error) {
 async function loadCatalogue() {
   say('Loading the catalogue…');
   try {
-    const [models, aliases, stations] = await Promise.all([
+    // Each listing on its own: a key may read models and aliases without the scope stations need.
+    const [models, aliases, stations] = await Promise.allSettled([
       api.models(offsets.models, PAGE), api.aliases(offsets.aliases, PAGE), api.stations(offsets.stations, PAGE)]);
-    catalogue.models = models.items;
-    catalogue.aliases = aliases.items;
-    renderList('models', models, m => `${m.name ?? '(no name)'} · ${m.id.slice(0, 12)} · n ${m.dimensions.n}, m ${m.dimensions.m}, p ${m.dimensions.p}, N ${m.dimensions.horizon}`, m => m.id);
-    renderList('aliases', aliases, a => `${a.name} → ${a.modelId.slice(0, 12)}`, a => a.modelId);
-    renderList('stations', stations, s => `${s.name} → ${s.model}${s.modelId ? ` (${s.modelId.slice(0, 12)})` : ''}`, s => s.modelId);
+    if (models.status === 'rejected') {
+      throw models.reason;
+    }
+
+    const empty = { items: [], offset: 0, total: 0 };
+    const aliasPage = aliases.status === 'fulfilled' ? aliases.value : empty;
+    const stationPage = stations.status === 'fulfilled' ? stations.value : empty;
+    catalogue.models = models.value.items;
+    catalogue.aliases = aliasPage.items;
+    renderList('models', models.value, m => `${m.name ?? '(no name)'} · ${m.id.slice(0, 12)} · n ${m.dimensions.n}, m ${m.dimensions.m}, p ${m.dimensions.p}, N ${m.dimensions.horizon}`, m => m.id);
+    renderList('aliases', aliasPage, a => `${a.name} → ${a.modelId.slice(0, 12)}`, a => a.modelId, aliases.reason);
+    renderList('stations', stationPage, s => `${s.name} → ${s.model}${s.modelId ? ` (${s.modelId.slice(0, 12)})` : ''}`, s => s.modelId, stations.reason);
     fillPickers();
-    say(`${models.total} model(s), ${aliases.total} alias(es), ${stations.total} station(s).`);
+    say(`${models.value.total} model(s), ${aliasPage.total} alias(es), ${stationPage.total} station(s).`);
     if (!chosen.a) {
-      const first = aliases.items[0]?.modelId ?? models.items[0]?.id;
+      const first = aliasPage.items[0]?.modelId ?? models.value.items[0]?.id;
       if (first) {
         await choose('a', first);
       }
@@ -53,12 +61,12 @@ async function loadCatalogue() {
   }
 }
 
-function renderList(kind, page, text, modelOf) {
+function renderList(kind, page, text, modelOf, refusal = null) {
   const list = $(kind);
   list.replaceChildren();
   if (page.items.length === 0) {
     const li = document.createElement('li');
-    li.textContent = 'none';
+    li.textContent = refusal ? `not shown: ${explain(refusal)}` : 'none';
     li.className = 'empty';
     list.appendChild(li);
   }
