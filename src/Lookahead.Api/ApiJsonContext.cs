@@ -27,6 +27,7 @@ namespace Lookahead.Api;
 [JsonSerializable(typeof(PlanResponse))]
 [JsonSerializable(typeof(AliasRequest))]
 [JsonSerializable(typeof(AliasResponse))]
+[JsonSerializable(typeof(AliasPage))]
 [JsonSerializable(typeof(SimulationRequestDto))]
 [JsonSerializable(typeof(SimulationResponse))]
 [JsonSerializable(typeof(EstimateRequestDto))]

@@ -23,6 +23,12 @@ public static class AliasesApi
     {
         var group = routes.MapGroup("/v1/aliases").WithTags("Aliases").RequireRateLimiting(RateLimitPolicy.Name);
 
+        group.MapGet("", ListAsync)
+            .RequireScope(AccessScopes.PlansRun)
+            .WithName("ListAliases")
+            .WithSummary("List the caller's tenant's aliases by name, a page at a time")
+            .ProducesProblem(StatusCodes.Status400BadRequest);
+
         group.MapPut("/{name}", PutAsync)
             .RequireScope(AccessScopes.ModelsWrite)
             .WithName("SetAlias")
@@ -54,9 +60,9 @@ public static class AliasesApi
             .WithName("PlanForAlias")
             .WithParameterExample("name", "cold-store-demo")
             .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0]}""")
-            .WithSummary("Plan with the model the alias points at now; the answer names that model")
+            .WithSummary("Plan with the model the alias points at now; the answer names that model (?format=svg or csv as for a plan)")
             .Accepts<PlanRequestDto>("application/json")
-            .WithMetadata(new SvgAlternativeMetadata())
+            .WithMetadata(new SvgAlternativeMetadata(), new CsvAlternativeMetadata())
             .ProducesBodyProblemsForModel();
 
         return group;
@@ -96,6 +102,21 @@ public static class AliasesApi
             AliasStatus.Created => TypedResults.Created($"/v1/aliases/{name}", ToResponse(outcome.Alias!)),
             _ => TypedResults.Ok(ToResponse(outcome.Alias!)),
         };
+    }
+
+    /// <remarks>Aliases are named within a tenant, so even an admin key lists only its own tenant's (as it reads them).</remarks>
+    public static async Task<Results<Ok<AliasPage>, ProblemHttpResult>> ListAsync(
+        HttpContext context, IModelStore store, CancellationToken cancellationToken, int? offset = null, int? limit = null)
+    {
+        var page = PageRequest.Read(offset, limit, out var problem);
+        if (problem is not null)
+        {
+            return problem;
+        }
+
+        var listing = await store.ListAliasesAsync(Tenants.Of(context), page.Offset, page.Limit, cancellationToken);
+        var items = listing.Items.Select(a => new AliasSummary(a.Name, a.ModelId, a.UpdatedAt)).ToList();
+        return TypedResults.Ok(new AliasPage(items, page.Offset, page.Limit, listing.Total));
     }
 
     public static async Task<Results<Ok<AliasResponse>, ProblemHttpResult>> GetAsync(string name, HttpContext context, IModelStore store, CancellationToken cancellationToken)

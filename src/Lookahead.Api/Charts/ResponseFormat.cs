@@ -3,11 +3,12 @@ using Microsoft.AspNetCore.Http.HttpResults;
 
 namespace Lookahead.Api.Charts;
 
-/// <summary>?format= on plan and simulate: JSON (default) or an SVG chart.</summary>
+/// <summary>?format= on plan and simulate: JSON (default), an SVG chart or a CSV table of the trajectories.</summary>
 public enum ResponseFormat
 {
     Json,
     Svg,
+    Csv,
 }
 
 public static class ResponseFormats
@@ -25,9 +26,12 @@ public static class ResponseFormats
             case "svg":
                 format = ResponseFormat.Svg;
                 return true;
+            case "csv":
+                format = ResponseFormat.Csv;
+                return true;
             default:
                 format = ResponseFormat.Json;
-                problem = ApiProblems.Validation("format", "must be 'json' or 'svg'");
+                problem = ApiProblems.Validation("format", "must be 'json', 'svg' or 'csv'");
                 return false;
         }
     }

@@ -11,7 +11,7 @@ namespace Lookahead.Api.Charts;
 public static class SvgChartWriter
 {
     private const int Width = 960;
-    private const int PanelHeight = 300;
+    private const int PanelHeight = 260;
     private const int Left = 72;
     private const int Right = 220;
     private const int Top = 48;
@@ -19,7 +19,12 @@ public static class SvgChartWriter
     private const int Bottom = 48;
     private const int LegendLine = 16;
 
-    private static readonly string[] Palette = ["#1f77b4", "#d62728", "#2ca02c", "#ff7f0e", "#9467bd", "#8c564b", "#e377c2", "#17becf", "#bcbd22", "#7f7f7f"];
+    // Signals avoid the limits' green and red, so a limit never reads as a signal.
+    private static readonly string[] Palette = ["#1f5fbf", "#e07b00", "#7b3fb5", "#00847e", "#b8327a", "#6b7d00", "#8c564b", "#17becf", "#bcbd22", "#7f7f7f"];
+
+    private const string MinColour = "#1f6b3a";
+    private const string MaxColour = "#b3261e";
+    private const string SpanFill = "#f0aa00";
 
     public static string Write(Chart chart)
     {
@@ -96,11 +101,28 @@ public static class SvgChartWriter
             TextAt(writer, Left + (plotWidth / 2), plotTop + plotHeight + 38, xLabel, "middle", null, null);
         }
 
-        foreach (var series in panel.Series)
+        foreach (var span in panel.Spans ?? [])
+        {
+            // At least a few pixels wide, so a single sample outside a limit still shows.
+            double from = X(span.From) - 2;
+            writer.WriteStartElement("rect");
+            Attr(writer, "x", from);
+            Attr(writer, "y", plotTop);
+            Attr(writer, "width", Math.Max(X(span.To) + 2 - from, 4));
+            Attr(writer, "height", plotHeight);
+            writer.WriteAttributeString("fill", SpanFill);
+            writer.WriteAttributeString("fill-opacity", "0.22");
+            writer.WriteAttributeString("class", "soft-limit-violation");
+            writer.WriteElementString("title", span.Label);
+            writer.WriteEndElement();
+        }
+
+        // Limits first: a signal lying on its limit is drawn over it and stays visible.
+        foreach (var series in panel.Series.Where(s => s.IsLimit).Concat(panel.Series.Where(s => !s.IsLimit)))
         {
             writer.WriteStartElement("polyline");
             writer.WriteAttributeString("fill", "none");
-            writer.WriteAttributeString("stroke", Palette[series.Colour % Palette.Length]);
+            writer.WriteAttributeString("stroke", Stroke(series));
             writer.WriteAttributeString("stroke-width", series.Style == LineStyle.Solid ? "2" : "1.5");
             if (series.Style != LineStyle.Solid)
             {
@@ -112,6 +134,23 @@ public static class SvgChartWriter
             writer.WriteString(series.Label);
             writer.WriteEndElement();
             writer.WriteEndElement();
+            if (series.IsLimit && series.ValueLabel is not null && series.Y.Length > 0 && double.IsFinite(series.Y[0]))
+            {
+                // The value at the line's right end, above an upper limit and below a lower one.
+                // Flipped to the inside when the line runs along the plot's edge, clear of the tick labels.
+                double lineY = Y(series.Y[0]);
+                bool above = series.Style == LineStyle.LimitMax ? lineY - 14 > plotTop : lineY + 14 > plotTop + plotHeight;
+                double valueY = above ? lineY - 4 : lineY + 13;
+                writer.WriteStartElement("text");
+                Attr(writer, "x", Left + plotWidth - 4);
+                Attr(writer, "y", valueY);
+                writer.WriteAttributeString("text-anchor", "end");
+                writer.WriteAttributeString("font-size", "11");
+                writer.WriteAttributeString("fill", Stroke(series));
+                writer.WriteAttributeString("class", series.Style == LineStyle.LimitMin ? "limit-min" : "limit-max");
+                writer.WriteString(series.ValueLabel);
+                writer.WriteEndElement();
+            }
         }
 
         WriteLegend(writer, panel, Left + plotWidth + 16, plotTop + 4, plotHeight);
@@ -130,7 +169,7 @@ public static class SvgChartWriter
             Attr(writer, "y1", rowY);
             Attr(writer, "x2", x + 24);
             Attr(writer, "y2", rowY);
-            writer.WriteAttributeString("stroke", Palette[series.Colour % Palette.Length]);
+            writer.WriteAttributeString("stroke", Stroke(series));
             writer.WriteAttributeString("stroke-width", "2");
             if (series.Style != LineStyle.Solid)
             {
@@ -222,9 +261,18 @@ public static class SvgChartWriter
 
     private static void Attr(XmlWriter writer, string name, double value) => writer.WriteAttributeString(name, Format(value));
 
+    private static string Stroke(ChartSeries series) => series.Style switch
+    {
+        LineStyle.LimitMin => MinColour,
+        LineStyle.LimitMax => MaxColour,
+        _ => Palette[series.Colour % Palette.Length],
+    };
+
     private static string DashPattern(LineStyle style) => style switch
     {
         LineStyle.Dashed => "8 5",
+        LineStyle.LimitMin => "10 5",
+        LineStyle.LimitMax => "4 3",
         LineStyle.DashDot => "6 3 2 3",
         _ => "2 4",
     };

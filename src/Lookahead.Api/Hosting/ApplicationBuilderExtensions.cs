@@ -44,6 +44,7 @@ public static class ApplicationBuilderExtensions
         });
         app.UseExceptionHandler();
         app.UseStatusCodePages();
+        app.UseTuningPage();
         var registry = app.Services.GetRequiredService<CollectorRegistry>();
         app.UseHttpMetrics(o => o.SetMetricFactory(Metrics.WithCustomRegistry(registry)));
         app.UseRouting();

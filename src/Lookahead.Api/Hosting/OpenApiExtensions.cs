@@ -36,7 +36,8 @@ public static class OpenApiExtensions
                 [new OpenApiSecuritySchemeReference(Access.ApiKeyAuthentication.SchemeName, document)] = [],
             });
             o.OperationFilter<SvgResponseFilter>();
-            o.CloseQuerySet<SvgAlternativeMetadata>("format", ["json", "svg"]);
+            o.OperationFilter<CsvResponseFilter>();
+            o.CloseQuerySet<SvgAlternativeMetadata>("format", ["json", "svg", "csv"]);
             o.SchemaFilter<AlwaysWrittenMembersSchemaFilter>();
             o.OperationFilter<StandardResponsesOperationFilter>();
             o.OperationFilter<ExamplesOperationFilter>();

@@ -47,9 +47,9 @@ public static class PlansApi
             .WithName("PlanForModel")
             .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithRequestExample("""{"state":[-17.5,-18.5,-19.5],"previousInput":[30,30,0],"disturbance":[[18],[19],[20]],"reference":[-20,-20,-20]}""")
-            .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart)")
+            .WithSummary("Optimal input sequence and predicted trajectory for a measured state (?format=svg for a chart, ?format=csv for a table)")
             .Accepts<PlanRequestDto>("application/json")
-            .WithMetadata(new SvgAlternativeMetadata())
+            .WithMetadata(new SvgAlternativeMetadata(), new CsvAlternativeMetadata())
             .ProducesBodyProblemsForModel();
 
         if (app.Services.GetRequiredService<Microsoft.Extensions.Options.IOptions<DiagnosticsOptions>>().Value.EnableBareEndpoint)
@@ -77,7 +77,7 @@ public static class PlansApi
         return await AnswerAsync(id, null, model!, responseFormat, services);
     }
 
-    /// <summary>Shared with the alias route: read and parse the body, run the plan, answer as JSON or SVG.</summary>
+    /// <summary>Shared with the alias route: read and parse the body, run the plan, answer as JSON, SVG or CSV.</summary>
     internal static async Task<Results<Ok<PlanResponse>, ContentHttpResult, ProblemHttpResult>> AnswerAsync(
         string id, string? alias, CompiledModel model, ResponseFormat format, PlanServices services)
     {
@@ -97,16 +97,34 @@ public static class PlansApi
 
         services.Log.Set("PlanStatus", WireNames.Status(plan.Status));
         services.Log.Set("SolveMicroseconds", Math.Round(call.SolveMicroseconds, 1));
-        if (format == ResponseFormat.Svg)
+        if (format is ResponseFormat.Svg or ResponseFormat.Csv)
         {
             var outputs = Rows.Split(plan.Outputs, plan.OutputCount);
             var inputs = Rows.Split(plan.Inputs, plan.InputCount);
-            var references = call.HasReference ? Enumerable.Repeat(call.Reference, plan.Horizon).ToArray() : null;
-            var chart = TrajectoryChart.Build($"Plan for {model.Document.Name ?? id[..12]} ({WireNames.Status(plan.Status)})", model, outputs, inputs, references);
+            var references = StageReferences(call, plan.Horizon);
+            if (format == ResponseFormat.Csv)
+            {
+                var states = Rows.Split(plan.States, plan.StateCount);
+                return TypedResults.Text(TrajectoryCsv.Plan(model, outputs, references, inputs, states, WireNames.Status(plan.Status)), TrajectoryCsv.ContentType);
+            }
+
+            var chart = TrajectoryChart.Build($"Plan for {model.Document.Name ?? id[..12]} ({WireNames.Status(plan.Status)})", model, outputs, inputs, references, previousInput: call.HasPreviousInput ? call.PreviousInput : null);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
         }
 
         return TypedResults.Ok(PlanMapping.ToResponse(id, alias, plan, call.SolveMicroseconds));
+    }
+
+    /// <summary>The setpoint of each stage 0…N−1: a schedule's rows with the last held, one setpoint held, or null without one.</summary>
+    private static double[][]? StageReferences(PlanCall call, int horizon)
+    {
+        if (call.ReferenceRowCount > 0)
+        {
+            var rows = call.ReferenceRows;
+            return [.. Enumerable.Range(0, horizon).Select(k => rows[Math.Min(k, call.ReferenceRowCount - 1)])];
+        }
+
+        return call.HasReference ? Enumerable.Repeat(call.Reference, horizon).ToArray() : null;
     }
 
     /// <summary>The body through the one plan-request parser; a syntax error is "malformed JSON", anything else names its fields.</summary>

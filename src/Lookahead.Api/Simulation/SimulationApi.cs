@@ -38,9 +38,9 @@ public static class SimulationApi
             .WithName("SimulateModel")
             .WithParameterExample("id", OperationExampleConventions.ExampleModelId)
             .WithRequestExample("""{"initialState":[-17.5,-18.5,-19.5],"steps":60,"previousInput":[20,20,0],"references":[{"fromStep":0,"reference":[-20,-20,-20]},{"fromStep":30,"reference":[-21.5,-21,-21]}]}""")
-            .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart)")
+            .WithSummary("Closed-loop run applying each plan's first move (?format=svg for a chart, ?format=csv for a table)")
             .Accepts<SimulationRequestDto>("application/json")
-            .WithMetadata(new SvgAlternativeMetadata())
+            .WithMetadata(new SvgAlternativeMetadata(), new CsvAlternativeMetadata())
             .ProducesBodyProblemsForModel();
 
         return group;
@@ -88,8 +88,13 @@ public static class SimulationApi
         services.Metrics.SimulatedPlans.WithLabels("not-optimal").Inc(result.NonOptimalSteps);
         if (responseFormat == ResponseFormat.Svg)
         {
-            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs);
+            var chart = TrajectoryChart.Build($"Closed loop: {model!.Document.Name ?? id[..12]}, {result.Steps} steps", model, result.Outputs, result.Inputs, result.References, result.EstimatedOutputs, simulation.PreviousInput);
             return TypedResults.Text(SvgChartWriter.Write(chart), ResponseFormats.SvgContentType);
+        }
+
+        if (responseFormat == ResponseFormat.Csv)
+        {
+            return TypedResults.Text(TrajectoryCsv.Simulation(model!, result), TrajectoryCsv.ContentType);
         }
 
         return TypedResults.Ok(SimulationMapping.ToResponse(id, model!, result));

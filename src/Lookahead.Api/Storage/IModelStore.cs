@@ -37,6 +37,9 @@ public interface IModelStore
 
     Task<AliasRecord?> GetAliasAsync(string tenant, string name, CancellationToken cancellationToken);
 
+    /// <summary>The tenant's aliases ordered by name (ordinal), a page at a time, with the tenant's total; other tenants' aliases never appear.</summary>
+    Task<AliasListing> ListAliasesAsync(string tenant, int offset, int limit, CancellationToken cancellationToken);
+
     /// <summary>Deletes the alias and its history; false when it did not exist.</summary>
     Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken);
 

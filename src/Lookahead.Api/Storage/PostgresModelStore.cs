@@ -265,6 +265,28 @@ public sealed partial class PostgresModelStore : IModelStore, IAsyncDisposable
         return await ReadAliasAsync(connection, tenant, name, cancellationToken);
     }
 
+    public async Task<AliasListing> ListAliasesAsync(string tenant, int offset, int limit, CancellationToken cancellationToken)
+    {
+        await EnsureSchemaAsync(cancellationToken);
+        var items = new List<AliasSummaryRecord>();
+        // Byte order, like SQLite's default collation, so both stores page alike.
+        await using (var command = dataSource.CreateCommand($"SELECT name, model_id, updated_at FROM {Aliases} WHERE tenant = $1 ORDER BY name COLLATE \"C\" LIMIT $2 OFFSET $3"))
+        {
+            command.Parameters.Add(new NpgsqlParameter { Value = tenant });
+            command.Parameters.Add(new NpgsqlParameter { Value = limit });
+            command.Parameters.Add(new NpgsqlParameter { Value = offset });
+            await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+            while (await reader.ReadAsync(cancellationToken))
+            {
+                items.Add(new AliasSummaryRecord(reader.GetString(0), reader.GetString(1), StoreTime.FromStored(reader.GetInt64(2))));
+            }
+        }
+
+        await using var count = dataSource.CreateCommand($"SELECT COUNT(*) FROM {Aliases} WHERE tenant = $1");
+        count.Parameters.Add(new NpgsqlParameter { Value = tenant });
+        return new AliasListing(items, (long)(await count.ExecuteScalarAsync(cancellationToken))!);
+    }
+
     public async Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await EnsureSchemaAsync(cancellationToken);

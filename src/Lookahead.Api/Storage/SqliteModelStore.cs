@@ -195,6 +195,29 @@ public sealed partial class SqliteModelStore : IModelStore, IDisposable, IAsyncD
         return await ReadAliasAsync(connection, tenant, name, cancellationToken);
     }
 
+    public async Task<AliasListing> ListAliasesAsync(string tenant, int offset, int limit, CancellationToken cancellationToken)
+    {
+        await using var connection = await OpenAsync(cancellationToken);
+        await using var command = connection.CreateCommand();
+        command.CommandText = """
+            SELECT name, model_id, updated_at FROM aliases WHERE tenant = $tenant ORDER BY name LIMIT $limit OFFSET $offset;
+            SELECT COUNT(*) FROM aliases WHERE tenant = $tenant;
+            """;
+        command.Parameters.AddWithValue("$tenant", tenant);
+        command.Parameters.AddWithValue("$limit", limit);
+        command.Parameters.AddWithValue("$offset", offset);
+        await using var reader = await command.ExecuteReaderAsync(cancellationToken);
+        var items = new List<AliasSummaryRecord>();
+        while (await reader.ReadAsync(cancellationToken))
+        {
+            items.Add(new AliasSummaryRecord(reader.GetString(0), reader.GetString(1), StoreTime.FromStored(reader.GetInt64(2))));
+        }
+
+        await reader.NextResultAsync(cancellationToken);
+        await reader.ReadAsync(cancellationToken);
+        return new AliasListing(items, reader.GetInt64(0));
+    }
+
     public async Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken)
     {
         await using var connection = await OpenAsync(cancellationToken);

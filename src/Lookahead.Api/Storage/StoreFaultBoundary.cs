@@ -30,6 +30,9 @@ public sealed class StoreFaultBoundary(IModelStore inner) : IModelStore, IStatio
 
     public Task<AliasRecord?> GetAliasAsync(string tenant, string name, CancellationToken cancellationToken) => GuardAsync(() => inner.GetAliasAsync(tenant, name, cancellationToken));
 
+    public Task<AliasListing> ListAliasesAsync(string tenant, int offset, int limit, CancellationToken cancellationToken) =>
+        GuardAsync(() => inner.ListAliasesAsync(tenant, offset, limit, cancellationToken));
+
     public Task<bool> DeleteAliasAsync(string tenant, string name, CancellationToken cancellationToken) => GuardAsync(() => inner.DeleteAliasAsync(tenant, name, cancellationToken));
 
     public Task PingAsync(CancellationToken cancellationToken) => GuardAsync(async () =>

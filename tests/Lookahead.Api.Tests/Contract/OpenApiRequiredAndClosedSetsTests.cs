@@ -63,8 +63,8 @@ public class OpenApiRequiredAndClosedSetsTests
         var operations = ServedDocument.Operations(document).ToDictionary(o => o.Operation["operationId"]!.GetValue<string>(), o => o.Operation);
         IReadOnlyList<string> QueryEnum(string operation, string name) => ServedDocument.Strings(
             operations[operation]["parameters"]!.AsArray().Single(p => p!["name"]!.GetValue<string>() == name)!["schema"]!["enum"]);
-        Assert.Equal(["json", "svg"], QueryEnum("PlanForModel", "format"));
-        Assert.Equal(["json", "svg"], QueryEnum("SimulateModel", "format"));
+        Assert.Equal(["json", "svg", "csv"], QueryEnum("PlanForModel", "format"));
+        Assert.Equal(["json", "svg", "csv"], QueryEnum("SimulateModel", "format"));
         Assert.Equal(["first-move", "full"], QueryEnum("ReplayPlans", "detail"));
         Assert.Equal(["json", "csv"], QueryEnum("GetStationSteps", "format"));
     }

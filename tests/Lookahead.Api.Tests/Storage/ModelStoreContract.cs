@@ -278,6 +278,41 @@ public abstract class ModelStoreContract : IAsyncLifetime
     }
 
     [StoreFact]
+    public async Task Alias_listing_pages_one_tenants_aliases_by_name_with_its_total()
+    {
+        await Store.PutIfAbsentAsync("north", Model("a"), default);
+        await Store.PutIfAbsentAsync("north", Model("b"), default);
+        await Store.PutIfAbsentAsync("south", Model("c"), default);
+        foreach (var name in new[] { "line-2", "dock", "line-10", "aisle" })
+        {
+            await Store.SetAliasAsync("north", name, Id("a"), T0, null, default);
+        }
+
+        await Store.SetAliasAsync("north", "dock", Id("b"), T0.AddMinutes(3), null, default);
+        await Store.SetAliasAsync("south", "dock", Id("c"), T0, null, default);
+        await Store.SetAliasAsync("south", "zz-south-only", Id("c"), T0, null, default);
+
+        var first = await Store.ListAliasesAsync("north", 0, 3, default);
+        var rest = await Store.ListAliasesAsync("north", 3, 3, default);
+
+        Assert.Equal(4, first.Total);
+        Assert.Equal(["aisle", "dock", "line-10"], first.Items.Select(a => a.Name));
+        Assert.Equal(["line-2"], rest.Items.Select(a => a.Name));
+        Assert.Equal(4, rest.Total);
+        var dock = first.Items[1];
+        Assert.Equal(Id("b"), dock.ModelId);
+        Assert.Equal(T0.AddMinutes(3), dock.UpdatedAt);
+
+        var south = await Store.ListAliasesAsync("south", 0, 10, default);
+        Assert.Equal(2, south.Total);
+        Assert.Equal(["dock", "zz-south-only"], south.Items.Select(a => a.Name));
+        Assert.Equal(Id("c"), south.Items[0].ModelId);
+        var none = await Store.ListAliasesAsync(DefaultTenant, 0, 10, default);
+        Assert.Equal(0, none.Total);
+        Assert.Empty(none.Items);
+    }
+
+    [StoreFact]
     public async Task Aliases_and_stations_are_named_within_a_tenant_and_an_alias_records_who_changed_it()
     {
         await Store.PutIfAbsentAsync("north", Model("a"), default);

@@ -62,7 +62,12 @@ public sealed class ServiceProcess : IDisposable
             start.Environment[EnvironmentName(key)] = value;
         }
 
-        start.Environment[EnvironmentName("Demo:Enabled")] = "false";
+        // No demo unless a test asks for it: most tests want an empty store.
+        if (settings?.ContainsKey("Demo:Enabled") != true)
+        {
+            start.Environment[EnvironmentName("Demo:Enabled")] = "false";
+        }
+
         start.Environment[EnvironmentName("Serilog:MinimumLevel:Default")] = "Warning";
         var service = new ServiceProcess(Process.Start(start) ?? throw new InvalidOperationException("dotnet did not start"), address);
         try
