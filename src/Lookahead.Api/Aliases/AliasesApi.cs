@@ -26,6 +26,8 @@ public static class AliasesApi
         group.MapGet("", ListAsync)
             .RequireScope(AccessScopes.PlansRun)
             .WithName("ListAliases")
+            .WithParameterExample("offset", "0")
+            .WithParameterExample("limit", "50")
             .WithSummary("List the caller's tenant's aliases by name, a page at a time")
             .ProducesProblem(StatusCodes.Status400BadRequest);
 
