@@ -161,6 +161,24 @@ public class ReplayTests
         Assert.Contains(errors, e => e.Path == "header" && e.Reason.Contains("level_2", StringComparison.Ordinal));
     }
 
+    [Theory]
+    [InlineData("timestamp;level_1;level_2\n1;0,5;-0,2\n", "';'")]
+    [InlineData("timestamp\tlevel_1\tlevel_2\n1\t0.5\t-0.2\n", "tab")]
+    public async Task Csv_replay_of_another_dialect_is_named_as_such_not_as_missing_columns(string body, string separator)
+    {
+        var (client, id, factory) = await StartAsync(TestModels.TwoTanks);
+        await using var _ = factory;
+
+        var response = await client.PostAsync($"/v1/models/{id}/plans", body, "text/csv");
+        var errors = await response.ReadProblemAsync(HttpStatusCode.BadRequest);
+
+        var error = Assert.Single(errors);
+        Assert.Equal("header", error.Path);
+        Assert.Contains(separator, error.Reason, StringComparison.Ordinal);
+        Assert.Contains("comma-separated", error.Reason, StringComparison.Ordinal);
+        Assert.DoesNotContain("missing", error.Reason, StringComparison.Ordinal);
+    }
+
     [Fact]
     public async Task Replay_with_another_content_type_is_a_415_and_an_unknown_model_a_404()
     {

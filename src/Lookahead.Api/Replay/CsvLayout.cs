@@ -69,9 +69,23 @@ internal sealed class CsvLayout
     /// <summary>Result columns for the estimate of an estimation replay (xhat…, then dhat…); empty otherwise.</summary>
     public string[] EstimateNames { get; private init; } = [];
 
+    /// <summary>The separator a one-column header is really split by (';' or a tab), else null.</summary>
+    private static string? OtherDialect(IReadOnlyList<string> headers) =>
+        headers.Count != 1 ? null
+        : headers[0].Contains(';', StringComparison.Ordinal) ? "';'"
+        : headers[0].Contains('\t', StringComparison.Ordinal) ? "tab"
+        : null;
+
     public static (CsvLayout? Layout, List<ProblemError> Errors) Build(IReadOnlyList<string> headers, CompiledModel model)
     {
         var errors = new List<ProblemError>();
+        if (OtherDialect(headers) is { } separator)
+        {
+            // Historian exports often use ';' with decimal commas, or tabs: name that, not the columns it hides.
+            errors.Add(new("header", $"is one column holding {separator}-separated names: the upload looks like another CSV dialect; send comma-separated values with decimal points (the lookahead command's replay converts dialects)"));
+            return (null, errors);
+        }
+
         var labels = model.Document.Labels;
         var used = new HashSet<int>();
         var index = new Dictionary<string, int>(StringComparer.Ordinal);
