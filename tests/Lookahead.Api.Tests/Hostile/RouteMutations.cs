@@ -111,7 +111,7 @@ public static class RouteMutations
             }
         }
 
-        var formats = new[] { "pdf", "SVG", "%00", "svg%00", "svg%20", "json,svg", new string('s', 10_000), "csv" };
+        var formats = new[] { "pdf", "SVG", "%00", "svg%00", "svg%20", "json,svg", new string('s', 10_000), "csv%00", "xlsx" };
         var planned = new (string Path, JsonNode Body)[]
         {
             ($"/v1/models/{targets.ZonesId}/plan", targets.Zones.Plan), ($"/v1/models/{targets.ZonesId}/simulate", targets.Zones.Simulate!),
@@ -164,7 +164,7 @@ public static class RouteMutations
         {
             "/v1/model", "/v2/models", "/v1/models/" + id + "/planz", "/v1/models/" + id + "/plan/extra", "/v1", "/v1/", "/v1/%00", "/%00",
             "/v1/models/" + id + "/gain/%00", "/v1/stations/" + HostileTargets.Station + "/stepz", "/health", "/health/live/x", "/health/live%00",
-            "/metrics/x", "/metrics%00", "/v1/aliases", "/v1/aliases/" + HostileTargets.Alias + "/plan/x", "/" + new string('x', 10_000),
+            "/metrics/x", "/metrics%00", "/v1/aliasez", "/v1/aliases/" + HostileTargets.Alias + "/plan/x", "/" + new string('x', 10_000),
             "/v1/models/" + id + "/" + new string('p', 10_000), "/v1/models%2f" + id,
         };
         foreach (var path in unknown)
