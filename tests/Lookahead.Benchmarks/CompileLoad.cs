@@ -74,11 +74,11 @@ public static class CompileLoad
 
         output.WriteLine($"compile load: {registrations} concurrent registrations of {States}×{Inputs}×{Horizon} models with input and rate limits; small model planned from 2 clients");
         output.WriteLine();
-        output.WriteLine("| phase | small plans | p50 ms | p99 ms | max ms | failed |");
-        output.WriteLine("| --- | ---: | ---: | ---: | ---: | ---: |");
+        output.WriteLine("| phase | small plans | p50 ms | p99 ms | max ms | max began at s | failed |");
+        output.WriteLine("| --- | ---: | ---: | ---: | ---: | ---: | ---: |");
         foreach (var (name, phase) in new[] { ("alone, before", baseline), ($"during the registrations ({registrationSeconds:f1} s)", during), ("after", after) })
         {
-            output.WriteLine($"| {name} | {phase.Latencies.Count:N0} | {Percentile(phase.Latencies, 0.5):f2} | {Percentile(phase.Latencies, 0.99):f2} | {(phase.Latencies.Count == 0 ? 0 : phase.Latencies.Max()):f2} | {phase.Failed} |");
+            output.WriteLine($"| {name} | {phase.Latencies.Count:N0} | {Percentile(phase.Latencies, 0.5):f2} | {Percentile(phase.Latencies, 0.99):f2} | {(phase.Latencies.Count == 0 ? 0 : phase.Latencies.Max()):f2} | {phase.SlowestAt:f2} | {phase.Failed} |");
         }
 
         output.WriteLine();
@@ -94,7 +94,8 @@ public static class CompileLoad
         return baseline.Failed + during.Failed + after.Failed == 0 ? 0 : 1;
     }
 
-    private sealed record Phase(List<double> Latencies, int Failed);
+    /// <param name="SlowestAt">Seconds from the phase's start to the start of its slowest plan.</param>
+    private sealed record Phase(List<double> Latencies, int Failed, double SlowestAt = 0);
 
     private static async Task<string> RegisterSmallAsync(HttpClient client)
     {
@@ -126,26 +127,35 @@ public static class CompileLoad
     /// <summary>Plans back to back from <paramref name="clients"/> loops until <paramref name="until"/> completes.</summary>
     private static async Task<Phase> PlanWhileAsync(HttpClient client, string id, string body, Task until, int clients)
     {
+        long phaseStart = Stopwatch.GetTimestamp();
         var loops = Enumerable.Range(0, clients).Select(_ => Task.Run(async () =>
         {
             var latencies = new List<double>();
             int failed = 0;
+            double slowest = 0, slowestAt = 0;
             while (!until.IsCompleted)
             {
                 long start = Stopwatch.GetTimestamp();
                 using var response = await client.PostAsync($"/v1/models/{id}/plan", new StringContent(body, Encoding.UTF8, "application/json"));
                 await response.Content.ReadAsByteArrayAsync();
-                latencies.Add(Stopwatch.GetElapsedTime(start).TotalMilliseconds);
+                double took = Stopwatch.GetElapsedTime(start).TotalMilliseconds;
+                latencies.Add(took);
+                if (took > slowest)
+                {
+                    slowest = took;
+                    slowestAt = Stopwatch.GetElapsedTime(phaseStart, start).TotalSeconds;
+                }
                 if (response.StatusCode != HttpStatusCode.OK)
                 {
                     failed++;
                 }
             }
 
-            return new Phase(latencies, failed);
+            return (Phase: new Phase(latencies, failed, slowestAt), Slowest: slowest);
         })).ToList();
         var phases = await Task.WhenAll(loops);
-        return new Phase([.. phases.SelectMany(p => p.Latencies)], phases.Sum(p => p.Failed));
+        double at = phases.MaxBy(p => p.Slowest).Phase.SlowestAt;
+        return new Phase([.. phases.SelectMany(p => p.Phase.Latencies)], phases.Sum(p => p.Phase.Failed), at);
     }
 
     /// <summary>

@@ -15,6 +15,7 @@ public static class CatalogServices
         services.AddSingleton<CatalogMetrics>();
         services.AddSingleton<IModelCompilation, CoreModelCompilation>();
         services.AddSingleton<CompileBudget>();
+        services.AddSingleton<RegistrationIntake>();
         services.AddSingleton<CompiledModelCache>();
         services.AddSingleton<ModelCatalog>();
         services.ConfigureSwaggerGen(o =>

@@ -30,6 +30,13 @@ public sealed class CompileBudgetOptions : IValidatableObject
     [Range(1024, long.MaxValue)]
     public long MemoryBudgetBytes { get; set; } = 2048L * 1024 * 1024;
 
+    /// <summary>Registrations parsed and checked at once, before compiling (0: one per processor but one, at least one).</summary>
+    [Range(0, 1024)]
+    public int IntakeConcurrency { get; set; }
+
+    /// <summary>The turns <see cref="IntakeConcurrency"/> stands for on this machine.</summary>
+    public int EffectiveIntakeConcurrency => IntakeConcurrency > 0 ? IntakeConcurrency : Math.Max(1, Environment.ProcessorCount - 1);
+
     /// <summary>The slots <see cref="MaxConcurrent"/> stands for on this machine.</summary>
     /// <remarks>
     /// One processor is left to plans by default: compiles run at lower priority, but with every core compiling, small

@@ -19,7 +19,8 @@ public sealed class ModelCatalog(
     IOptions<RequestLimitsOptions> limits,
     CatalogMetrics metrics,
     TimeProvider time,
-    IOptions<CacheOptions> cacheOptions)
+    IOptions<CacheOptions> cacheOptions,
+    RegistrationIntake intake)
 {
     /// <summary>Stands for "any tenant" among the confirmations; not a well-formed tenant name, so no tenant's own.</summary>
     private const string AnyTenant = "*";
@@ -32,21 +33,26 @@ public sealed class ModelCatalog(
     /// </summary>
     public async Task<RegistrationResult> RegisterAsync(string tenant, ModelDocumentDto dto, CancellationToken cancellationToken)
     {
-        var normalised = ModelDocumentMapping.Normalise(dto);
-        var errors = new List<ValidationError>();
-        var document = ModelDocumentMapping.ToCore(normalised, errors);
-        if (errors.Count == 0)
+        CanonicalModel canonical;
+        using (await intake.EnterAsync(cancellationToken))
         {
-            errors.AddRange(ModelValidator.Validate(document, limits.Value.ToSizeLimits()));
+            var normalised = ModelDocumentMapping.Normalise(dto);
+            var errors = new List<ValidationError>();
+            var document = ModelDocumentMapping.ToCore(normalised, errors);
+            if (errors.Count == 0)
+            {
+                errors.AddRange(ModelValidator.Validate(document, limits.Value.ToSizeLimits()));
+            }
+
+            if (errors.Count > 0)
+            {
+                metrics.Registrations.WithLabels("rejected").Inc();
+                return RegistrationResult.Rejected(errors);
+            }
+
+            canonical = CanonicalModel.From(normalised, json.Value.SerializerOptions);
         }
 
-        if (errors.Count > 0)
-        {
-            metrics.Registrations.WithLabels("rejected").Inc();
-            return RegistrationResult.Rejected(errors);
-        }
-
-        var canonical = CanonicalModel.From(normalised, json.Value.SerializerOptions);
         if (!cache.TryGet(canonical.Id, out var model))
         {
             try

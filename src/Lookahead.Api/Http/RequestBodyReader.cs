@@ -22,15 +22,18 @@ public sealed class RequestBodyReader(IOptions<JsonOptions> json, IOptions<Reque
         where T : class;
 
     /// <summary>Reads the body under the limits and deserialises it with the service's strict options.</summary>
-    public Task<BodyResult<T>> ReadJsonAsync<T>(HttpRequest request, CancellationToken cancellationToken)
+    /// <param name="beforeParse">
+    /// Awaited once the whole body has arrived and before it is parsed (a turn to take); its result is disposed after.
+    /// </param>
+    public Task<BodyResult<T>> ReadJsonAsync<T>(HttpRequest request, CancellationToken cancellationToken, Func<CancellationToken, Task<IDisposable>>? beforeParse = null)
         where T : class
     {
         var typeInfo = (JsonTypeInfo<T>)SerializerOptions.GetTypeInfo(typeof(T));
-        return ReadAsync(request, body => Deserialize(body, typeInfo), cancellationToken);
+        return ReadAsync(request, body => Deserialize(body, typeInfo), cancellationToken, beforeParse);
     }
 
     /// <summary>Reads the body under the limits (JSON content type required) and hands the bytes to <paramref name="parse"/>.</summary>
-    public async Task<BodyResult<T>> ReadAsync<T>(HttpRequest request, BodyParser<T> parse, CancellationToken cancellationToken)
+    public async Task<BodyResult<T>> ReadAsync<T>(HttpRequest request, BodyParser<T> parse, CancellationToken cancellationToken, Func<CancellationToken, Task<IDisposable>>? beforeParse = null)
         where T : class
     {
         if (!request.HasJsonContentType())
@@ -59,12 +62,19 @@ public sealed class RequestBodyReader(IOptions<JsonOptions> json, IOptions<Reque
 
                 if (read.IsCompleted)
                 {
+                    IDisposable? turn = null;
                     try
                     {
+                        if (beforeParse is not null)
+                        {
+                            turn = await beforeParse(cancellationToken);
+                        }
+
                         return Parse(buffer, parse);
                     }
                     finally
                     {
+                        turn?.Dispose();
                         reader.AdvanceTo(buffer.End);
                     }
                 }

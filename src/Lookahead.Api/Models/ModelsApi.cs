@@ -68,9 +68,9 @@ public static class ModelsApi
     }
 
     public static async Task<Results<Created<ModelRegistrationResponse>, Ok<ModelRegistrationResponse>, ProblemHttpResult>> RegisterAsync(
-        HttpRequest request, RequestBodyReader reader, ModelCatalog catalog, IDiagnosticContext log, CancellationToken cancellationToken)
+        HttpRequest request, RequestBodyReader reader, ModelCatalog catalog, RegistrationIntake intake, IDiagnosticContext log, CancellationToken cancellationToken)
     {
-        var body = await reader.ReadJsonAsync<ModelDocumentDto>(request, cancellationToken);
+        var body = await reader.ReadJsonAsync<ModelDocumentDto>(request, cancellationToken, intake.EnterAsync);
         if (body.Problem is not null)
         {
             return body.Problem;
