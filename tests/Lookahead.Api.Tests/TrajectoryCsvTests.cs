@@ -32,7 +32,7 @@ public class TrajectoryCsvTests
         var records = CsvText.Records(await response.Content.ReadAsStringAsync());
         Assert.Equal(
             ["step", "time_s", "y_zone_a", "y_zone_b", "y_zone_c", "r_zone_a", "r_zone_b", "r_zone_c", "u_chiller_1", "u_chiller_2", "u_door_fan",
-             "x_zone_a_temp", "x_zone_b_temp", "x_zone_c_temp", "status"],
+             "x_zone_a_temp", "x_zone_b_temp", "x_zone_c_temp", "status", "warnings"],
             records[0]);
         Assert.Equal(31 + 1, records.Count);
         var table = Table(records);
@@ -40,7 +40,8 @@ public class TrajectoryCsvTests
         {
             Assert.Equal(k, table[k]["step"]);
             Assert.Equal(60.0 * k, table[k]["time_s"]);
-            Assert.Equal("optimal", records[k + 1][^1]);
+            Assert.Equal("optimal", records[k + 1][^2]);
+            Assert.Equal(string.Join(' ', json["warnings"]!.AsArray().Select(w => w!["code"]!.GetValue<string>())), records[k + 1][^1]);
             AssertClose(json["outputs"]![k]!, table[k], "y_zone_a", "y_zone_b", "y_zone_c");
             AssertClose(json["states"]![k]!, table[k], "x_zone_a_temp", "x_zone_b_temp", "x_zone_c_temp");
             if (k < 30)
@@ -56,6 +57,27 @@ public class TrajectoryCsvTests
         Assert.Equal(-20.5, table[29]["r_zone_a"]);
         Assert.False(table[30].ContainsKey("r_zone_a"));
         Assert.False(table[30].ContainsKey("u_chiller_1"));
+    }
+
+    [Fact]
+    public async Task A_plan_and_a_run_that_are_not_clean_optima_say_so_on_every_csv_row_with_the_json_answers_warning_codes()
+    {
+        // Three solver iterations are too few for the demo's limited plans: each stops early, flagged.
+        await using var factory = new LookaheadFactory(new Dictionary<string, string?> { ["Planning:MaxSolverIterations"] = "3" });
+        var client = factory.CreateClient();
+        string id = await DemoIdAsync(client);
+
+        const string run = """{"initialState":[-17.5,-18.5,-19.5],"previousInput":[30,30,0],"steps":5,"references":[{"fromStep":0,"reference":[-20,-20,-21]}]}""";
+        foreach (var (path, body, code) in new[] { ($"/v1/models/{id}/plan", DemoPlan, "iteration-limit"), ($"/v1/models/{id}/simulate", run, "steps-not-optimal") })
+        {
+            var json = await (await client.PostJsonAsync(path, body)).ReadJsonAsync();
+            var codes = json["warnings"]!.AsArray().Select(w => w!["code"]!.GetValue<string>()).ToList();
+            Assert.Contains(code, codes);
+
+            var records = CsvText.Records(await (await client.PostJsonAsync(path + "?format=csv", body)).Content.ReadAsStringAsync());
+            Assert.Equal("warnings", records[0][^1]);
+            Assert.All(records.Skip(1), row => Assert.Equal(string.Join(' ', codes), row[^1]));
+        }
     }
 
     [Fact]
@@ -98,7 +120,7 @@ public class TrajectoryCsvTests
             [
                 "step", "time_s", .. outputs.Select(o => "y_" + o), .. outputs.Select(o => "r_" + o), "u_chiller_1", "u_chiller_2", "u_door_fan",
                 .. outputs.Select(o => "ym_" + o), .. outputs.Select(o => "yhat_" + o), .. states.Select(s => "x_" + s), .. states.Select(s => "xhat_" + s),
-                "dhat1", "dhat2", "dhat3",
+                "dhat1", "dhat2", "dhat3", "warnings",
             ],
             records[0]);
         Assert.Equal(13 + 1, records.Count);
@@ -130,8 +152,8 @@ public class TrajectoryCsvTests
         var plan = CsvText.Records(await (await client.PostJsonAsync($"/v1/models/{id}/plan?format=csv", """{"state":[1,0]}""")).Content.ReadAsStringAsync());
         var run = CsvText.Records(await (await client.PostJsonAsync($"/v1/models/{id}/simulate?format=csv", """{"initialState":[1,0],"steps":5}""")).Content.ReadAsStringAsync());
 
-        Assert.Equal(["step", "time_s", "y1", "y2", "u1", "x1", "x2", "status"], plan[0]);
-        Assert.Equal(["step", "time_s", "y1", "y2", "u1", "ym1", "ym2", "x1", "x2"], run[0]);
+        Assert.Equal(["step", "time_s", "y1", "y2", "u1", "x1", "x2", "status", "warnings"], plan[0]);
+        Assert.Equal(["step", "time_s", "y1", "y2", "u1", "ym1", "ym2", "x1", "x2", "warnings"], run[0]);
         Assert.Equal(6 + 1, run.Count);
     }
 
@@ -166,10 +188,10 @@ public class TrajectoryCsvTests
     private static async Task<string> DemoIdAsync(HttpClient client) =>
         (await (await client.GetAsync("/v1/aliases/cold-store-demo")).ReadJsonAsync())["modelId"]!.GetValue<string>();
 
-    /// <summary>Data rows as column → number, leaving out empty cells and the status text.</summary>
+    /// <summary>Data rows as column → number, leaving out empty cells and the status and warnings text.</summary>
     private static List<Dictionary<string, double>> Table(List<List<string>> records) =>
         records.Skip(1).Select(row => records[0].Zip(row)
-            .Where(cell => cell.First != "status" && cell.Second.Length > 0)
+            .Where(cell => cell.First is not ("status" or "warnings") && cell.Second.Length > 0)
             .ToDictionary(cell => cell.First, cell => double.Parse(cell.Second, NumberStyles.Float, CultureInfo.InvariantCulture))).ToList();
 
     /// <summary>The JSON answer carries 15 significant digits, the CSV round-trip digits.</summary>

@@ -1,5 +1,6 @@
 using System.Globalization;
 using CsvHelper;
+using Lookahead.Api.Http;
 using Lookahead.Core.Planning;
 
 namespace Lookahead.Api.Charts;
@@ -9,7 +10,9 @@ namespace Lookahead.Api.Charts;
 /// with a prefix per kind so labels shared between kinds cannot clash: y_ outputs, r_ setpoints, u_ inputs, x_ states,
 /// and for a simulation ym_ measurements, yhat_ estimated outputs, xhat_ state estimates and dhat1… disturbance
 /// estimates (replay's names for those). Without labels the columns are y1…, r1…, u1…, x1…. Moves and setpoints
-/// have one row fewer than samples: their cells in the last row are empty.
+/// have one row fewer than samples: their cells in the last row are empty. The last column, warnings, repeats the
+/// answer's warning codes on every row (a plan also repeats its status), so a saved table still says what was not a
+/// clean optimum.
 /// </summary>
 public static class TrajectoryCsv
 {
@@ -19,7 +22,8 @@ public static class TrajectoryCsv
     private sealed record Group(IEnumerable<string> Names, double[][]? Rows);
 
     /// <param name="status">A plan's status, repeated on each row so a saved table still says whether it was a clean optimum; null for a simulation.</param>
-    public static string Write(CompiledModel model, IReadOnlyList<(string Prefix, string Fallback, string[]? Labels, int Width, double[][]? Rows)> groups, int samples, string? status)
+    /// <param name="warnings">The answer's warning codes, space-separated (empty when none), repeated on each row for the same reason.</param>
+    public static string Write(CompiledModel model, IReadOnlyList<(string Prefix, string Fallback, string[]? Labels, int Width, double[][]? Rows)> groups, int samples, string? status, string warnings)
     {
         var present = groups.Where(g => g.Rows is not null).Select(g => new Group(Names(g.Labels, g.Width, g.Prefix, g.Fallback), g.Rows)).ToList();
         using var text = new StringWriter(CultureInfo.InvariantCulture);
@@ -37,6 +41,7 @@ public static class TrajectoryCsv
                 csv.WriteField("status");
             }
 
+            csv.WriteField("warnings");
             csv.EndRecord();
             for (int k = 0; k < samples; k++)
             {
@@ -57,6 +62,7 @@ public static class TrajectoryCsv
                     csv.WriteField(status);
                 }
 
+                csv.WriteField(warnings);
                 csv.EndRecord();
             }
 
@@ -67,7 +73,7 @@ public static class TrajectoryCsv
     }
 
     /// <summary>The columns of a plan: outputs y_0…y_N, the setpoint of each stage, moves u_0…u_{N−1}, states x_0…x_N.</summary>
-    public static string Plan(CompiledModel model, double[][] outputs, double[][]? references, double[][] inputs, double[][] states, string status)
+    public static string Plan(CompiledModel model, double[][] outputs, double[][]? references, double[][] inputs, double[][] states, string status, IEnumerable<Warning> warnings)
     {
         var labels = model.Document.Labels;
         return Write(
@@ -79,7 +85,8 @@ public static class TrajectoryCsv
                 ("x_", "x", labels?.States, model.StateCount, states),
             ],
             outputs.Length,
-            status);
+            status,
+            Codes(warnings));
     }
 
     /// <summary>The columns of a closed-loop run, T + 1 rows.</summary>
@@ -100,8 +107,11 @@ public static class TrajectoryCsv
                 ("", "dhat", null, disturbances, result.DisturbanceEstimates),
             ],
             result.Outputs.Length,
-            null);
+            null,
+            Codes(result.Warnings));
     }
+
+    private static string Codes(IEnumerable<Warning> warnings) => string.Join(' ', warnings.Select(w => WireNames.Warning(w.Code)));
 
     private static string[] Names(string[]? labels, int count, string prefix, string fallback) =>
         labels is { } given && given.Length == count

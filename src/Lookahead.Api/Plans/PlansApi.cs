@@ -105,7 +105,7 @@ public static class PlansApi
             if (format == ResponseFormat.Csv)
             {
                 var states = Rows.Split(plan.States, plan.StateCount);
-                return TypedResults.Text(TrajectoryCsv.Plan(model, outputs, references, inputs, states, WireNames.Status(plan.Status)), TrajectoryCsv.ContentType);
+                return TypedResults.Text(TrajectoryCsv.Plan(model, outputs, references, inputs, states, WireNames.Status(plan.Status), plan.Warnings), TrajectoryCsv.ContentType);
             }
 
             var chart = TrajectoryChart.Build($"Plan for {model.Document.Name ?? id[..12]} ({WireNames.Status(plan.Status)})", model, outputs, inputs, references, previousInput: call.HasPreviousInput ? call.PreviousInput : null);
