@@ -54,12 +54,4 @@ public class RegistrationIntakeTests
         taken.Dispose();
         (await next.WaitAsync(TimeSpan.FromSeconds(10))).Dispose();
     }
-
-    [Fact]
-    public void By_default_one_processor_is_left_to_plans()
-    {
-        var options = new CompileBudgetOptions();
-        Assert.Equal(Math.Max(1, Environment.ProcessorCount - 1), options.EffectiveIntakeConcurrency);
-        Assert.Equal(3, new CompileBudgetOptions { IntakeConcurrency = 3 }.EffectiveIntakeConcurrency);
-    }
 }
