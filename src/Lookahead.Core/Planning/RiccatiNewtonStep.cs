@@ -27,7 +27,7 @@ namespace Lookahead.Core.Planning;
 /// </para>
 /// Immutable; every buffer lives in the workspace passed in.
 /// </summary>
-internal sealed unsafe class RiccatiNewtonStep
+internal sealed unsafe partial class RiccatiNewtonStep
 {
     private readonly int n;
     private readonly int m;
@@ -49,6 +49,7 @@ internal sealed unsafe class RiccatiNewtonStep
     private readonly double* terminal;
     private readonly double* cs;
     private readonly double* slackWeights;
+    private readonly double[]? tiledConstants;
 
     /// <param name="a">A, n×n row-major.</param>
     /// <param name="b">B, n×m row-major.</param>
@@ -59,7 +60,8 @@ internal sealed unsafe class RiccatiNewtonStep
     /// <param name="cs">Rows of C of the softly limited outputs, ns×n.</param>
     /// <param name="slackWeights">w_s, the quadratic weight of each slack.</param>
     /// <param name="carriesPreviousInput">Whether the state is augmented with u_{k−1} (rate weight or rate limits).</param>
-    public RiccatiNewtonStep(int horizon, double[] a, double[] b, double[] qx, double[] r, double[] s, double[] terminal, double[] cs, double[] slackWeights, bool carriesPreviousInput)
+    /// <param name="allowTiles">Use the 4×4-tile recursion when the sizes allow it (false only to compare the two in tests).</param>
+    public RiccatiNewtonStep(int horizon, double[] a, double[] b, double[] qx, double[] r, double[] s, double[] terminal, double[] cs, double[] slackWeights, bool carriesPreviousInput, bool allowTiles = true)
     {
         n = (int)Math.Round(Math.Sqrt(a.Length));
         m = b.Length / n;
@@ -110,7 +112,11 @@ internal sealed unsafe class RiccatiNewtonStep
         this.terminal = at[7];
         this.cs = at[8];
         this.slackWeights = at[9];
+        tiledConstants = TiledConstants(allowTiles && Tile.IsSupported && n <= 4 && m <= 4 && ns <= 4, a, b, qx, r, s, terminal, cs, n, m, ns);
     }
+
+    /// <summary>Whether <see cref="Factor"/> runs on 4×4 tiles (n, m and ns ≤ 4 on a processor with AVX and FMA).</summary>
+    public bool IsTiled => tiledConstants is not null;
 
     public RiccatiWorkspace CreateWorkspace() => new(n, m, nv, ns, horizon);
 
@@ -123,6 +129,11 @@ internal sealed unsafe class RiccatiNewtonStep
     /// <returns>False when a G_k or the slack system is not numerically positive definite.</returns>
     public bool Factor(InteriorPointWorkspace ws, bool hasPrevious)
     {
+        if (tiledConstants is not null)
+        {
+            return FactorTiled(ws, hasPrevious);
+        }
+
         GC.KeepAlive(constants);
         var rw = ws.Riccati;
         double* pxx = Pointer(rw.Pxx);
@@ -318,33 +329,37 @@ internal sealed unsafe class RiccatiNewtonStep
             nextMx = swap;
         }
 
-        if (ns > 0)
+        return FactorSlackSystem(ws, w, sp);
+    }
+
+    /// <summary>The reduced slack system W_0 + diag(w + D^ε + Σ_k D^lo_k + D^hi_k), factored; false when not positive definite.</summary>
+    private bool FactorSlackSystem(InteriorPointWorkspace ws, double* w, int stride)
+    {
+        if (ns == 0)
         {
-            double* system = Pointer(rw.SlackSystem);
-            double* slackBarrier = Pointer(ws.SlackBarrier);
-            for (int i = 0; i < ns; i++)
-            {
-                for (int j = 0; j <= i; j++)
-                {
-                    system[(i * ns) + j] = 0.5 * (w[(i * sp) + j] + w[(j * sp) + i]);
-                }
-
-                double sum = slackWeights[i] + slackBarrier[i];
-                for (int k = 1; k <= horizon; k++)
-                {
-                    sum += outputSum[(k * ns) + i];
-                }
-
-                system[(i * ns) + i] += sum;
-            }
-
-            if (!Cholesky(system, ns))
-            {
-                return false;
-            }
+            return true;
         }
 
-        return true;
+        double* system = Pointer(ws.Riccati.SlackSystem);
+        double* slackBarrier = Pointer(ws.SlackBarrier);
+        double* outputSum = Pointer(ws.OutputBarrierSum);
+        for (int i = 0; i < ns; i++)
+        {
+            for (int j = 0; j <= i; j++)
+            {
+                system[(i * ns) + j] = 0.5 * (w[(i * stride) + j] + w[(j * stride) + i]);
+            }
+
+            double sum = slackWeights[i] + slackBarrier[i];
+            for (int k = 1; k <= horizon; k++)
+            {
+                sum += outputSum[(k * ns) + i];
+            }
+
+            system[(i * ns) + i] += sum;
+        }
+
+        return Cholesky(system, ns);
     }
 
     /// <summary>
@@ -353,6 +368,12 @@ internal sealed unsafe class RiccatiNewtonStep
     /// </summary>
     public void Solve(InteriorPointWorkspace ws)
     {
+        if (tiledConstants is not null)
+        {
+            SolveTiled(ws);
+            return;
+        }
+
         GC.KeepAlive(constants);
         var rw = ws.Riccati;
         double* px = Pointer(rw.Costate);

@@ -46,6 +46,9 @@ internal sealed class RiccatiWorkspace
         StepInput = Pinned(mp);
         PreviousStepInput = Pinned(mp);
         StepSlack = Pinned(Math.Max(sp, 4));
+        Tiles = Pinned(RiccatiNewtonStep.TileCount * 16);
+        TiledInverse = Pinned(horizon * 32);
+        TiledFeedforward = Pinned(horizon * 4);
     }
 
     /// <summary>Row length rounded up to a multiple of 4 (one 256-bit vector of doubles).</summary>
@@ -99,6 +102,15 @@ internal sealed class RiccatiWorkspace
     public double[] StepInput { get; }
     public double[] PreviousStepInput { get; }
     public double[] StepSlack { get; }
+
+    /// <summary>4×4 scratch tiles of the small-model recursion (<see cref="RiccatiNewtonStep"/>).</summary>
+    public double[] Tiles { get; }
+
+    /// <summary>Per stage of the small-model recursion: L⁻¹ of G_k's factor and its transpose, two 4×4 tiles.</summary>
+    public double[] TiledInverse { get; }
+
+    /// <summary>Per stage of the small-model recursion: G_k⁻¹g_k of the last solve, 4 wide.</summary>
+    public double[] TiledFeedforward { get; }
 
     private static double[] Pinned(int length) => GC.AllocateArray<double>(Math.Max(length, 1), pinned: true);
 }
