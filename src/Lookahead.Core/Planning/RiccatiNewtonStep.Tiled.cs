@@ -78,98 +78,33 @@ internal sealed unsafe partial class RiccatiNewtonStep
     }
 
     /// <summary>As <see cref="Factor"/>, on 4×4 tiles; only for n, m, ns ≤ 4.</summary>
+    /// <remarks>
+    /// Each stage is split into three methods so that the JIT inlines every tile operation inside them (one method
+    /// holding the whole stage exceeded its inlining budget, and the tile operations became calls).
+    /// </remarks>
     private bool FactorTiled(InteriorPointWorkspace ws, bool hasPrevious)
     {
         GC.KeepAlive(tiledConstants);
         var rw = ws.Riccati;
         double* t = Pointer(rw.Tiles);
         double* c = Pointer(tiledConstants!);
-        double* pxx = t + (16 * TilePxx);
-        double* pxv = t + (16 * TilePxv);
-        double* pvv = t + (16 * TilePvv);
-        double* mx = t + (16 * TileMx);
-        double* mv = t + (16 * TileMv);
-        double* w = t + (16 * TileW);
-        double* yx = t + (16 * TileYx);
-        double* rest = t + (16 * TileRest);
-        double* rate = t + (16 * TileRate);
-        double* coupling = t + (16 * TileCoupling);
-        double* fxT = t + (16 * TileFxT);
-        double* slackGain = t + (16 * TileSlackGain);
-        double* gainX = t + (16 * TileGainX);
-        double* gainV = t + (16 * TileGainV);
-        double* work = t + (16 * TileWork);
-        double* scratch = t + (16 * TileScratch);
-        double* ta = c + (16 * ConstantA);
-        double* tb = c + (16 * ConstantB);
-        double* tqx = c + (16 * ConstantQx);
-        double* tr = c + (16 * ConstantR);
-        double* ts = c + (16 * ConstantS);
-        double* tcs = c + (16 * ConstantCs);
-        double* tcsT = c + (16 * ConstantCsT);
-        double* inputBarrier = Pointer(ws.InputBarrier);
-        double* rateBarrier = Pointer(ws.RateBarrier);
         double* outputSum = Pointer(ws.OutputBarrierSum);
         double* outputDifference = Pointer(ws.OutputBarrierDifference);
 
-        Tile.Copy(c + (16 * ConstantTerminal), pxx);
-        AddOutputCurvatureTiled(pxx, tcs, outputSum + (horizon * ns), scratch);
-        SetOutputCouplingTiled(mx, tcsT, outputDifference + (horizon * ns));
-        Tile.Clear(pxv);
-        Tile.Clear(pvv);
-        Tile.Clear(mv);
-        Tile.Clear(w);
-        Tile.Clear(rate);
+        Tile.Copy(c + (16 * ConstantTerminal), t + (16 * TilePxx));
+        AddOutputCurvatureTiled(t + (16 * TilePxx), c + (16 * ConstantCs), outputSum + (horizon * ns), t + (16 * TileScratch));
+        SetOutputCouplingTiled(t + (16 * TileMx), c + (16 * ConstantCsT), outputDifference + (horizon * ns));
+        Tile.Clear(t + (16 * TilePxv));
+        Tile.Clear(t + (16 * TilePvv));
+        Tile.Clear(t + (16 * TileMv));
+        Tile.Clear(t + (16 * TileW));
+        Tile.Clear(t + (16 * TileRate));
 
         for (int k = horizon - 1; k >= 0; k--)
         {
             bool rateHere = nv > 0 && (k > 0 || hasPrevious);
             double* factor = Pointer(rw.Factor) + (k * m * m);
-
-            // Yx = Pxx B + Pxv; X = R + D^u + Bᵀ Yx + (Pxvᵀ B + Pvv), made exactly symmetric.
-            Tile.Times(pxx, tb, pxv, yx);
-            Tile.TransposeTimes(tb, yx, tr, rest);
-            if (nv > 0)
-            {
-                Tile.TransposeTimes(pxv, tb, pvv, scratch);
-                Tile.Add(scratch, rest);
-            }
-
-            Tile.Symmetrise(rest);
-            double* du = inputBarrier + (k * m);
-            for (int i = 0; i < m; i++)
-            {
-                rest[(i * 4) + i] += du[i];
-            }
-
-            // L = Bᵀ Mx + Mv, before M is overwritten.
-            if (ns > 0)
-            {
-                Tile.TransposeTimes(tb, mx, nv > 0 ? mv : null, coupling);
-            }
-
-            if (rateHere)
-            {
-                Tile.Copy(ts, rate);
-                double* dd = rateBarrier + (k * m);
-                for (int i = 0; i < m; i++)
-                {
-                    rate[(i * 4) + i] += dd[i];
-                }
-            }
-            else
-            {
-                Tile.Clear(rate);
-            }
-
-            for (int i = 0; i < m; i++)
-            {
-                for (int j = 0; j <= i; j++)
-                {
-                    factor[(i * m) + j] = rest[(i * 4) + j] + rate[(i * 4) + j];
-                }
-            }
-
+            StageCurvature(ws, t, c, k, rateHere, factor);
             if (!Cholesky(factor, m))
             {
                 return false;
@@ -179,15 +114,9 @@ internal sealed unsafe partial class RiccatiNewtonStep
             double* inverse = Pointer(rw.TiledInverse) + (k * 32);
             InvertFactor(factor, inverse);
             Tile.Transpose(inverse, inverse + 16);
-
             if (ns > 0)
             {
-                // G⁻¹L, stored with its transpose; W −= LᵀG⁻¹L.
-                Tile.Copy(coupling, slackGain);
-                SolveTile(inverse, slackGain);
-                Tile.CopyRows(slackGain, Pointer(rw.SlackGain) + (k * m * 4), m);
-                Tile.Transpose(slackGain, Pointer(rw.SlackGainTransposed) + (k * 16));
-                Tile.TransposeTimes(coupling, slackGain, w, w, subtract: true);
+                StageSlackGain(rw, t, k, inverse);
             }
 
             if (k == 0)
@@ -195,60 +124,152 @@ internal sealed unsafe partial class RiccatiNewtonStep
                 break;
             }
 
-            // K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ).
-            Tile.TransposeTimes(yx, ta, null, fxT);
-            Tile.Copy(fxT, gainX);
-            SolveTile(inverse, gainX);
-            double* gain = Pointer(rw.Gain) + (k * m * kp);
-            double* gainT = Pointer(rw.GainTransposed) + (k * kp * 4);
-            for (int i = 0; i < m; i++)
-            {
-                Tile.StoreRow(gainX, i, gain + (i * kp));
-            }
-
-            Tile.Transpose(gainX, gainT);
-            if (nv > 0)
-            {
-                Tile.Negate(rate, gainV);
-                SolveTile(inverse, gainV);
-                for (int i = 0; i < m; i++)
-                {
-                    Tile.StoreRow(gainV, i, gain + (i * kp) + 4);
-                }
-
-                Tile.Transpose(gainV, gainT + 16);
-            }
-
-            // Pxx ← CᵀQC + Aᵀ Pxx A − F_x K_x + output curvature; Mx ← E + Aᵀ Mx − F_x G⁻¹L (old Pxx, Mx read first).
-            Tile.Times(pxx, ta, null, work);
-            Tile.TransposeTimes(ta, work, tqx, scratch);
-            Tile.TransposeTimes(fxT, gainX, scratch, scratch, subtract: true);
-            Tile.Symmetrise(scratch);
-            AddOutputCurvatureTiled(scratch, tcs, outputSum + (k * ns), work);
-            Tile.Copy(scratch, pxx);
-            if (ns > 0)
-            {
-                SetOutputCouplingTiled(scratch, tcsT, outputDifference + (k * ns));
-                Tile.TransposeTimes(ta, mx, scratch, scratch);
-                Tile.TransposeTimes(fxT, slackGain, scratch, mx, subtract: true);
-            }
-
-            if (nv > 0)
-            {
-                // P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised; M^v = (S + D^Δ)G⁻¹L — as the general path.
-                Tile.TransposeTimes(gainX, rate, null, pxv);
-                Tile.Copy(rest, work);
-                SolveTile(inverse, work);
-                Tile.Times(rate, work, null, pvv);
-                Tile.Symmetrise(pvv);
-                if (ns > 0)
-                {
-                    Tile.Times(rate, slackGain, null, mv);
-                }
-            }
+            StageGain(rw, t, c, k, inverse);
+            StageValue(t, c, inverse, outputSum + (k * ns), outputDifference + (k * ns));
         }
 
-        return FactorSlackSystem(ws, w, 4);
+        return FactorSlackSystem(ws, t + (16 * TileW), 4);
+    }
+
+    /// <summary>
+    /// Yx = Pxx B + Pxv; X = R + D^u + BᵀYx + Pxvᵀ B + Pvv (exactly symmetric); L = BᵀMx + Mv; the rate block S + D^Δ;
+    /// and the lower triangle of G_k = X + rate block into <paramref name="factor"/>.
+    /// </summary>
+    private void StageCurvature(InteriorPointWorkspace ws, double* t, double* c, int k, bool rateHere, double* factor)
+    {
+        double* pxv = t + (16 * TilePxv);
+        double* yx = t + (16 * TileYx);
+        double* rest = t + (16 * TileRest);
+        double* rate = t + (16 * TileRate);
+        double* scratch = t + (16 * TileScratch);
+        double* tb = c + (16 * ConstantB);
+        Tile.Times(t + (16 * TilePxx), tb, pxv, yx);
+        Tile.TransposeTimes(tb, yx, c + (16 * ConstantR), rest);
+        if (nv > 0)
+        {
+            Tile.TransposeTimes(pxv, tb, t + (16 * TilePvv), scratch);
+            Tile.Add(scratch, rest);
+        }
+
+        Tile.Symmetrise(rest);
+        double* du = Pointer(ws.InputBarrier) + (k * m);
+        for (int i = 0; i < m; i++)
+        {
+            rest[(i * 4) + i] += du[i];
+        }
+
+        if (ns > 0)
+        {
+            Tile.TransposeTimes(tb, t + (16 * TileMx), nv > 0 ? t + (16 * TileMv) : null, t + (16 * TileCoupling));
+        }
+
+        if (rateHere)
+        {
+            Tile.Copy(c + (16 * ConstantS), rate);
+            double* dd = Pointer(ws.RateBarrier) + (k * m);
+            for (int i = 0; i < m; i++)
+            {
+                rate[(i * 4) + i] += dd[i];
+            }
+        }
+        else
+        {
+            Tile.Clear(rate);
+        }
+
+        for (int i = 0; i < m; i++)
+        {
+            for (int j = 0; j <= i; j++)
+            {
+                factor[(i * m) + j] = rest[(i * 4) + j] + rate[(i * 4) + j];
+            }
+        }
+    }
+
+    /// <summary>G⁻¹L, stored with its transpose for the solve; W −= LᵀG⁻¹L.</summary>
+    private void StageSlackGain(RiccatiWorkspace rw, double* t, int k, double* inverse)
+    {
+        double* coupling = t + (16 * TileCoupling);
+        double* slackGain = t + (16 * TileSlackGain);
+        double* w = t + (16 * TileW);
+        Tile.Copy(coupling, slackGain);
+        SolveTile(inverse, slackGain);
+        Tile.CopyRows(slackGain, Pointer(rw.SlackGain) + (k * m * 4), m);
+        Tile.Transpose(slackGain, Pointer(rw.SlackGainTransposed) + (k * 16));
+        Tile.TransposeTimes(coupling, slackGain, w, w, subtract: true);
+    }
+
+    /// <summary>K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ), stored by rows and transposed.</summary>
+    private void StageGain(RiccatiWorkspace rw, double* t, double* c, int k, double* inverse)
+    {
+        double* fxT = t + (16 * TileFxT);
+        double* gainX = t + (16 * TileGainX);
+        double* gainV = t + (16 * TileGainV);
+        Tile.TransposeTimes(t + (16 * TileYx), c + (16 * ConstantA), null, fxT);
+        Tile.Copy(fxT, gainX);
+        SolveTile(inverse, gainX);
+        double* gain = Pointer(rw.Gain) + (k * m * kp);
+        double* gainT = Pointer(rw.GainTransposed) + (k * kp * 4);
+        for (int i = 0; i < m; i++)
+        {
+            Tile.StoreRow(gainX, i, gain + (i * kp));
+        }
+
+        Tile.Transpose(gainX, gainT);
+        if (nv > 0)
+        {
+            Tile.Negate(t + (16 * TileRate), gainV);
+            SolveTile(inverse, gainV);
+            for (int i = 0; i < m; i++)
+            {
+                Tile.StoreRow(gainV, i, gain + (i * kp) + 4);
+            }
+
+            Tile.Transpose(gainV, gainT + 16);
+        }
+    }
+
+    /// <summary>
+    /// The value function one stage back: Pxx ← CᵀQC + AᵀPxxA − F_xK_x + output curvature; Mx ← E + AᵀMx − F_xG⁻¹L;
+    /// P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised (no cancellation when a rate barrier is huge);
+    /// M^v = (S + D^Δ)G⁻¹L. The old Pxx and Mx are read before they are overwritten.
+    /// </summary>
+    private void StageValue(double* t, double* c, double* inverse, double* outputSum, double* outputDifference)
+    {
+        double* pxx = t + (16 * TilePxx);
+        double* mx = t + (16 * TileMx);
+        double* fxT = t + (16 * TileFxT);
+        double* gainX = t + (16 * TileGainX);
+        double* slackGain = t + (16 * TileSlackGain);
+        double* rate = t + (16 * TileRate);
+        double* work = t + (16 * TileWork);
+        double* scratch = t + (16 * TileScratch);
+        double* ta = c + (16 * ConstantA);
+        Tile.Times(pxx, ta, null, work);
+        Tile.TransposeTimes(ta, work, c + (16 * ConstantQx), scratch);
+        Tile.TransposeTimes(fxT, gainX, scratch, scratch, subtract: true);
+        Tile.Symmetrise(scratch);
+        AddOutputCurvatureTiled(scratch, c + (16 * ConstantCs), outputSum, work);
+        Tile.Copy(scratch, pxx);
+        if (ns > 0)
+        {
+            SetOutputCouplingTiled(scratch, c + (16 * ConstantCsT), outputDifference);
+            Tile.TransposeTimes(ta, mx, scratch, scratch);
+            Tile.TransposeTimes(fxT, slackGain, scratch, mx, subtract: true);
+        }
+
+        if (nv > 0)
+        {
+            Tile.TransposeTimes(gainX, rate, null, t + (16 * TilePxv));
+            Tile.Copy(t + (16 * TileRest), work);
+            SolveTile(inverse, work);
+            Tile.Times(rate, work, null, t + (16 * TilePvv));
+            Tile.Symmetrise(t + (16 * TilePvv));
+            if (ns > 0)
+            {
+                Tile.Times(rate, slackGain, null, t + (16 * TileMv));
+            }
+        }
     }
 
     /// <summary>X ← G⁻¹X = L⁻ᵀ(L⁻¹X) for a tile X, with L⁻¹ from <see cref="InvertFactor"/>; rows ≥ m stay zero.</summary>

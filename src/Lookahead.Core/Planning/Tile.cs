@@ -162,13 +162,14 @@ internal static unsafe class Tile
         }
     }
 
+    /// <summary>add + a0·y0 + a1·y1 + a2·y2 + a3·y3 as two independent pairs, so the chain is two operations shorter.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static Vector256<double> Combine(double a0, double a1, double a2, double a3, Vector256<double> y0, Vector256<double> y1, Vector256<double> y2, Vector256<double> y3, double* add)
     {
-        var acc = add == null ? Vector256.Create(a0) * y0 : Vector256.FusedMultiplyAdd(Vector256.Create(a0), y0, Vector256.Load(add));
-        acc = Vector256.FusedMultiplyAdd(Vector256.Create(a1), y1, acc);
-        acc = Vector256.FusedMultiplyAdd(Vector256.Create(a2), y2, acc);
-        return Vector256.FusedMultiplyAdd(Vector256.Create(a3), y3, acc);
+        var first = add == null ? Vector256.Create(a0) * y0 : Vector256.FusedMultiplyAdd(Vector256.Create(a0), y0, Vector256.Load(add));
+        first = Vector256.FusedMultiplyAdd(Vector256.Create(a1), y1, first);
+        var second = Vector256.FusedMultiplyAdd(Vector256.Create(a3), y3, Vector256.Create(a2) * y2);
+        return first + second;
     }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
