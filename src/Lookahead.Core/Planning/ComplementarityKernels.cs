@@ -80,9 +80,34 @@ internal static class ComplementarityKernels
     /// <summary>Largest α ≤ <paramref name="cap"/> with s + αΔs ≥ 0 and λ + αΔλ ≥ 0.</summary>
     public static double MaxStep(ReadOnlySpan<double> s, ReadOnlySpan<double> lambda, ReadOnlySpan<double> ds, ReadOnlySpan<double> dl, double cap)
     {
-        // α·(−Δ) ≤ value is tested by multiplying, so only a row that lowers the bound costs a division.
         double alpha = cap;
-        for (int i = 0; i < s.Length; i++)
+        int i = 0;
+        if (Vector.IsHardwareAccelerated)
+        {
+            // Per lane, the ratio of each row that moves towards its bound; rows moving away are masked out (their
+            // quotient may be ±∞ or NaN and is never read).
+            var sv = MemoryMarshal.Cast<double, Vector<double>>(s);
+            var lv = MemoryMarshal.Cast<double, Vector<double>>(lambda);
+            var dsv = MemoryMarshal.Cast<double, Vector<double>>(ds);
+            var dlv = MemoryMarshal.Cast<double, Vector<double>>(dl);
+            var infinity = new Vector<double>(double.PositiveInfinity);
+            var best = infinity;
+            for (int v = 0; v < sv.Length; v++)
+            {
+                best = Vector.Min(best, Vector.ConditionalSelect(Vector.LessThan(dsv[v], Vector<double>.Zero), sv[v] / -dsv[v], infinity));
+                best = Vector.Min(best, Vector.ConditionalSelect(Vector.LessThan(dlv[v], Vector<double>.Zero), lv[v] / -dlv[v], infinity));
+            }
+
+            for (int lane = 0; lane < Vector<double>.Count; lane++)
+            {
+                alpha = Math.Min(alpha, best[lane]);
+            }
+
+            i = sv.Length * Vector<double>.Count;
+        }
+
+        // α·(−Δ) ≤ value is tested by multiplying, so only a row that lowers the bound costs a division.
+        for (; i < s.Length; i++)
         {
             if (alpha * -ds[i] > s[i])
             {
@@ -158,7 +183,24 @@ internal static class ComplementarityKernels
     /// <summary>s += αΔs, λ += αΔλ.</summary>
     public static void Move(Span<double> s, Span<double> lambda, ReadOnlySpan<double> ds, ReadOnlySpan<double> dl, double alpha)
     {
-        for (int i = 0; i < s.Length; i++)
+        int i = 0;
+        if (Vector.IsHardwareAccelerated)
+        {
+            var sv = MemoryMarshal.Cast<double, Vector<double>>(s);
+            var lv = MemoryMarshal.Cast<double, Vector<double>>(lambda);
+            var dsv = MemoryMarshal.Cast<double, Vector<double>>(ds);
+            var dlv = MemoryMarshal.Cast<double, Vector<double>>(dl);
+            var a = new Vector<double>(alpha);
+            for (int v = 0; v < sv.Length; v++)
+            {
+                sv[v] += a * dsv[v];
+                lv[v] += a * dlv[v];
+            }
+
+            i = sv.Length * Vector<double>.Count;
+        }
+
+        for (; i < s.Length; i++)
         {
             s[i] += alpha * ds[i];
             lambda[i] += alpha * dl[i];

@@ -16,7 +16,7 @@ namespace Lookahead.Core.Planning;
 /// It evaluates the rows, their change along a step, Gᵀ times a multiplier vector and the barrier weights summed per
 /// variable — the only places the interior-point method touches the rows one by one. Immutable.
 /// </summary>
-internal sealed unsafe class StagewiseLimitRows
+internal sealed unsafe partial class StagewiseLimitRows
 {
     private readonly int n;
     private readonly int m;
@@ -39,7 +39,8 @@ internal sealed unsafe class StagewiseLimitRows
     /// <param name="softOutputs">The outputs with a soft limit, in slack order.</param>
     /// <param name="softMin">ymin of each soft output (slack order, −∞ when absent).</param>
     /// <param name="softMax">ymax of each soft output (slack order, +∞ when absent).</param>
-    public StagewiseLimitRows(int horizon, int stateCount, double[] inputMin, double[] inputMax, double[] rateMin, double[] rateMax, int[] softOutputs, double[] softMin, double[] softMax)
+    /// <param name="allowContiguous">Use the contiguous passes when every limit is present (false only to compare the two in tests).</param>
+    public StagewiseLimitRows(int horizon, int stateCount, double[] inputMin, double[] inputMax, double[] rateMin, double[] rateMax, int[] softOutputs, double[] softMin, double[] softMax, bool allowContiguous = true)
     {
         n = stateCount;
         m = inputMin.Length;
@@ -61,6 +62,7 @@ internal sealed unsafe class StagewiseLimitRows
         MaxRows = (2 * horizon * m) + (2 * horizon * m) + (2 * horizon * ns) + ns;
         Scale = 1 + new[] { inputMin, inputMax, rateMin, rateMax, softMin, softMax }
             .SelectMany(v => v).Where(double.IsFinite).Select(Math.Abs).DefaultIfEmpty(0).Max();
+        repeated = Repeated(allowContiguous, horizon, inputMin, inputMax, rateMin, rateMax, softMin, softMax);
     }
 
     /// <summary>Most rows a request can have.</summary>
@@ -96,6 +98,12 @@ internal sealed unsafe class StagewiseLimitRows
     /// <summary>value_i = g_i(z) at the workspace's point (Inputs, SoftOutputs, Slacks).</summary>
     public void Values(InteriorPointWorkspace ws, in LimitRowLayout layout, ReadOnlySpan<double> previousInput)
     {
+        if (repeated is not null)
+        {
+            ValuesContiguous(ws, layout, previousInput);
+            return;
+        }
+
         double* value = Pointer(ws.RowValue);
         double* u = Pointer(ws.Inputs);
         double* y = Pointer(ws.SoftOutputs);
@@ -162,6 +170,12 @@ internal sealed unsafe class StagewiseLimitRows
     /// <summary>StepRow_i = change of g_i along the step (StepInputs, StepSoftOutputs, StepSlacks); the limits drop out.</summary>
     public void Steps(InteriorPointWorkspace ws, in LimitRowLayout layout)
     {
+        if (repeated is not null)
+        {
+            StepsContiguous(ws, layout);
+            return;
+        }
+
         double* step = Pointer(ws.StepRow);
         double* du = Pointer(ws.StepInputs);
         double* dy = Pointer(ws.StepSoftOutputs);
@@ -229,6 +243,12 @@ internal sealed unsafe class StagewiseLimitRows
     /// </summary>
     public void SubtractTransposed(InteriorPointWorkspace ws, in LimitRowLayout layout, double[] multipliers, ReadOnlySpan<double> cs)
     {
+        if (repeated is not null)
+        {
+            SubtractTransposedContiguous(ws, layout, multipliers, cs);
+            return;
+        }
+
         double* lambda = Pointer(multipliers);
         double* gu = Pointer(ws.InputGradient);
         double* gx = Pointer(ws.StateGradient);
@@ -331,6 +351,12 @@ internal sealed unsafe class StagewiseLimitRows
     /// <summary>Barrier weights d_i summed per variable: per u_{k,i} (InputBarrier), per Δu_{k,i} (RateBarrier), per (k, s) as d^lo + d^hi and d^lo − d^hi, per ε (SlackBarrier).</summary>
     public void SumBarriers(InteriorPointWorkspace ws, in LimitRowLayout layout)
     {
+        if (repeated is not null)
+        {
+            SumBarriersContiguous(ws, layout);
+            return;
+        }
+
         double* d = Pointer(ws.Barrier);
         double* du = Pointer(ws.InputBarrier);
         double* dd = Pointer(ws.RateBarrier);
