@@ -25,14 +25,28 @@ internal sealed unsafe partial class RiccatiNewtonStep
     private const int TileRate = 8;
     private const int TileCoupling = 9;
     private const int TileFxT = 10;
-    private const int TileSlackGain = 11;
-    private const int TileGainX = 12;
-    private const int TileGainV = 13;
-    private const int TileWork = 14;
-    private const int TileScratch = 15;
+    private const int TileWork = 11;
+    private const int TileScratch = 12;
+
+    /// <summary>
+    /// Per-stage tiles kept from <see cref="FactorTiled"/> for <see cref="SolveTiled"/>, by offset in a stage's block of
+    /// <see cref="StageBlock"/> doubles: L⁻¹ and L⁻ᵀ of G_k's factor, the gain K_k = [K_x K_v] and its transpose, G_k⁻¹L
+    /// and its transpose. Whole zero-padded tiles, so the solve multiplies by all four rows without size checks.
+    /// </summary>
+    private const int StageInverse = 0;
+    private const int StageInverseTransposed = 16;
+    private const int StageGainX = 32;
+    private const int StageGainV = 48;
+    private const int StageGainXTransposed = 64;
+    private const int StageGainVTransposed = 80;
+    private const int StageSlackGainOffset = 96;
+    private const int StageSlackGainTransposedOffset = 112;
+
+    /// <summary>Doubles per stage in <see cref="RiccatiWorkspace.TiledStages"/>.</summary>
+    internal const int StageBlock = 128;
 
     /// <summary>Tiles a workspace needs for <see cref="FactorTiled"/>.</summary>
-    internal const int TileCount = 16;
+    internal const int TileCount = 13;
 
     /// <summary>Constant tiles (A, Aᵀ, B, Bᵀ, CᵀQC, R, S, P, C_s, C_sᵀ), zero-padded to 4×4, by position.</summary>
     private const int ConstantA = 0;
@@ -111,12 +125,12 @@ internal sealed unsafe partial class RiccatiNewtonStep
             }
 
             // G⁻¹ = L⁻ᵀL⁻¹ applied as two tile products (independent rows, no substitution chain): L⁻¹ and its transpose.
-            double* inverse = Pointer(rw.TiledInverse) + (k * 32);
-            InvertFactor(factor, inverse);
-            Tile.Transpose(inverse, inverse + 16);
+            double* stage = Pointer(rw.TiledStages) + (k * StageBlock);
+            InvertFactor(factor, stage + StageInverse);
+            Tile.Transpose(stage + StageInverse, stage + StageInverseTransposed);
             if (ns > 0)
             {
-                StageSlackGain(rw, t, k, inverse);
+                StageSlackGain(t, stage);
             }
 
             if (k == 0)
@@ -124,8 +138,8 @@ internal sealed unsafe partial class RiccatiNewtonStep
                 break;
             }
 
-            StageGain(rw, t, c, k, inverse);
-            StageValue(t, c, inverse, outputSum + (k * ns), outputDifference + (k * ns));
+            StageGain(t, c, stage);
+            StageValue(t, c, stage, outputSum + (k * ns), outputDifference + (k * ns));
         }
 
         return FactorSlackSystem(ws, t + (16 * TileW), 4);
@@ -186,46 +200,33 @@ internal sealed unsafe partial class RiccatiNewtonStep
         }
     }
 
-    /// <summary>G⁻¹L, stored with its transpose for the solve; W −= LᵀG⁻¹L.</summary>
-    private void StageSlackGain(RiccatiWorkspace rw, double* t, int k, double* inverse)
+    /// <summary>G⁻¹L, kept with its transpose for the solve; W −= LᵀG⁻¹L.</summary>
+    private static void StageSlackGain(double* t, double* stage)
     {
         double* coupling = t + (16 * TileCoupling);
-        double* slackGain = t + (16 * TileSlackGain);
+        double* slackGain = stage + StageSlackGainOffset;
         double* w = t + (16 * TileW);
         Tile.Copy(coupling, slackGain);
-        SolveTile(inverse, slackGain);
-        Tile.CopyRows(slackGain, Pointer(rw.SlackGain) + (k * m * 4), m);
-        Tile.Transpose(slackGain, Pointer(rw.SlackGainTransposed) + (k * 16));
+        SolveTile(stage + StageInverse, slackGain);
+        Tile.Transpose(slackGain, stage + StageSlackGainTransposedOffset);
         Tile.TransposeTimes(coupling, slackGain, w, w, subtract: true);
     }
 
-    /// <summary>K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ), stored by rows and transposed.</summary>
-    private void StageGain(RiccatiWorkspace rw, double* t, double* c, int k, double* inverse)
+    /// <summary>K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ), kept with its transpose.</summary>
+    private void StageGain(double* t, double* c, double* stage)
     {
         double* fxT = t + (16 * TileFxT);
-        double* gainX = t + (16 * TileGainX);
-        double* gainV = t + (16 * TileGainV);
+        double* gainX = stage + StageGainX;
         Tile.TransposeTimes(t + (16 * TileYx), c + (16 * ConstantA), null, fxT);
         Tile.Copy(fxT, gainX);
-        SolveTile(inverse, gainX);
-        double* gain = Pointer(rw.Gain) + (k * m * kp);
-        double* gainT = Pointer(rw.GainTransposed) + (k * kp * 4);
-        for (int i = 0; i < m; i++)
-        {
-            Tile.StoreRow(gainX, i, gain + (i * kp));
-        }
-
-        Tile.Transpose(gainX, gainT);
+        SolveTile(stage + StageInverse, gainX);
+        Tile.Transpose(gainX, stage + StageGainXTransposed);
         if (nv > 0)
         {
+            double* gainV = stage + StageGainV;
             Tile.Negate(t + (16 * TileRate), gainV);
-            SolveTile(inverse, gainV);
-            for (int i = 0; i < m; i++)
-            {
-                Tile.StoreRow(gainV, i, gain + (i * kp) + 4);
-            }
-
-            Tile.Transpose(gainV, gainT + 16);
+            SolveTile(stage + StageInverse, gainV);
+            Tile.Transpose(gainV, stage + StageGainVTransposed);
         }
     }
 
@@ -234,13 +235,13 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised (no cancellation when a rate barrier is huge);
     /// M^v = (S + D^Δ)G⁻¹L. The old Pxx and Mx are read before they are overwritten.
     /// </summary>
-    private void StageValue(double* t, double* c, double* inverse, double* outputSum, double* outputDifference)
+    private void StageValue(double* t, double* c, double* stage, double* outputSum, double* outputDifference)
     {
         double* pxx = t + (16 * TilePxx);
         double* mx = t + (16 * TileMx);
         double* fxT = t + (16 * TileFxT);
-        double* gainX = t + (16 * TileGainX);
-        double* slackGain = t + (16 * TileSlackGain);
+        double* gainX = stage + StageGainX;
+        double* slackGain = stage + StageSlackGainOffset;
         double* rate = t + (16 * TileRate);
         double* work = t + (16 * TileWork);
         double* scratch = t + (16 * TileScratch);
@@ -262,7 +263,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         {
             Tile.TransposeTimes(gainX, rate, null, t + (16 * TilePxv));
             Tile.Copy(t + (16 * TileRest), work);
-            SolveTile(inverse, work);
+            SolveTile(stage + StageInverse, work);
             Tile.Times(rate, work, null, t + (16 * TilePvv));
             Tile.Symmetrise(t + (16 * TilePvv));
             if (ns > 0)
@@ -318,25 +319,22 @@ internal sealed unsafe partial class RiccatiNewtonStep
         double* qState = Pointer(ws.StateGradient);
         double* rateBarrier = Pointer(ws.RateBarrier);
         double* feedforward = Pointer(rw.TiledFeedforward);
-        double* inverses = Pointer(rw.TiledInverse);
-        double* slackGains = Pointer(rw.SlackGain);
-        double* gains = Pointer(rw.Gain);
-        double* v = stackalloc double[4];
+        double* stages = Pointer(rw.TiledStages);
+        var zero = Vector256<double>.Zero;
 
         // Backward: g = r_k + B̃ᵀp_{k+1}; kk = G⁻¹g; w −= (G⁻¹L)ᵀg; p^x_k = q_k + Aᵀp^x_{k+1} − K_xᵀg; p^v_k = (S + D^Δ)kk.
         var px = Tile.LoadPartial(qState + (horizon * n), n);
-        var pv = Vector256<double>.Zero;
-        var wv = Vector256<double>.Zero;
+        var pv = zero;
+        var wv = zero;
         for (int k = horizon - 1; k >= 0; k--)
         {
-            var g = Tile.LoadPartial(ru + (k * m), m) + pv;
-            g = Tile.Combine(px, tb, g, v);
-            double* inverse = inverses + (k * 32);
-            var kk = Tile.Combine(Tile.Combine(g, inverse + 16, Vector256<double>.Zero, v), inverse, Vector256<double>.Zero, v);
+            double* stage = stages + (k * StageBlock);
+            var g = Tile.Combine(px, tb, Tile.LoadPartial(ru + (k * m), m) + pv);
+            var kk = Tile.Combine(Tile.Combine(g, stage + StageInverseTransposed, zero), stage + StageInverse, zero);
             Vector256.Store(kk, feedforward + (k * 4));
             if (ns > 0)
             {
-                wv = Tile.Combine(-g, slackGains + (k * m * 4), wv, v, m);
+                wv = Tile.Combine(-g, stage + StageSlackGainOffset, wv);
             }
 
             if (k == 0)
@@ -344,24 +342,22 @@ internal sealed unsafe partial class RiccatiNewtonStep
                 break;
             }
 
-            var next = Tile.Combine(px, ta, Tile.LoadPartial(qState + (k * n), n), v);
-            px = Tile.Combine(-g, gains + (k * m * kp), next, v, m, kp);
+            px = Tile.Combine(-g, stage + StageGainX, Tile.Combine(px, ta, Tile.LoadPartial(qState + (k * n), n)));
             if (nv > 0)
             {
-                pv = Tile.Combine(kk, ts, Tile.LoadPartial(rateBarrier + (k * m), m) * kk, v);
+                pv = Tile.Combine(kk, ts, Tile.LoadPartial(rateBarrier + (k * m), m) * kk);
             }
         }
 
         // Δε = −(W_0 + diag(w + D^ε + Σ_k D^lo + D^hi))⁻¹(w_0 + q_ε).
         double* stepSlacks = Pointer(ws.StepSlacks);
-        var stepSlack = Vector256<double>.Zero;
+        var stepSlack = zero;
         if (ns > 0)
         {
             double* qe = Pointer(ws.SlackGradient);
-            Vector256.Store(wv, v);
             for (int j = 0; j < ns; j++)
             {
-                stepSlacks[j] = -(v[j] + qe[j]);
+                stepSlacks[j] = -(wv.GetElement(j) + qe[j]);
             }
 
             CholeskySolveVector(Pointer(rw.SlackSystem), ns, stepSlacks);
@@ -371,10 +367,8 @@ internal sealed unsafe partial class RiccatiNewtonStep
         // Forward: Δu_k = −(kk_k + (G⁻¹L)Δε + K_kΔz_k), Δx_{k+1} = AΔx_k + BΔu_k.
         double* du = Pointer(ws.StepInputs);
         double* dx = Pointer(ws.StepStates);
-        double* slackGainsT = Pointer(rw.SlackGainTransposed);
-        double* gainsT = Pointer(rw.GainTransposed);
-        var x = Vector256<double>.Zero;
-        var previous = Vector256<double>.Zero;
+        var x = zero;
+        var previous = zero;
         for (int i = 0; i < n; i++)
         {
             dx[i] = 0;
@@ -382,24 +376,24 @@ internal sealed unsafe partial class RiccatiNewtonStep
 
         for (int k = 0; k < horizon; k++)
         {
+            double* stage = stages + (k * StageBlock);
             var u = Vector256.Load(feedforward + (k * 4));
             if (ns > 0)
             {
-                u = Tile.Combine(stepSlack, slackGainsT + (k * 16), u, v);
+                u = Tile.Combine(stepSlack, stage + StageSlackGainTransposedOffset, u);
             }
 
             if (k > 0)
             {
-                double* gainT = gainsT + (k * kp * 4);
-                u = Tile.Combine(x, gainT, u, v);
+                u = Tile.Combine(x, stage + StageGainXTransposed, u);
                 if (nv > 0)
                 {
-                    u = Tile.Combine(previous, gainT + 16, u, v);
+                    u = Tile.Combine(previous, stage + StageGainVTransposed, u);
                 }
             }
 
             u = -u;
-            x = Tile.Combine(u, tbt, Tile.Combine(x, tat, Vector256<double>.Zero, v), v);
+            x = Tile.Combine(u, tbt, Tile.Combine(x, tat, zero));
             Tile.StorePartial(u, du + (k * m), m);
             Tile.StorePartial(x, dx + ((k + 1) * n), n);
             previous = u;

@@ -47,7 +47,7 @@ internal sealed class RiccatiWorkspace
         PreviousStepInput = Pinned(mp);
         StepSlack = Pinned(Math.Max(sp, 4));
         Tiles = Pinned(RiccatiNewtonStep.TileCount * 16);
-        TiledInverse = Pinned(horizon * 32);
+        TiledStages = Pinned(horizon * RiccatiNewtonStep.StageBlock);
         TiledFeedforward = Pinned(horizon * 4);
     }
 
@@ -106,8 +106,8 @@ internal sealed class RiccatiWorkspace
     /// <summary>4×4 scratch tiles of the small-model recursion (<see cref="RiccatiNewtonStep"/>).</summary>
     public double[] Tiles { get; }
 
-    /// <summary>Per stage of the small-model recursion: L⁻¹ of G_k's factor and its transpose, two 4×4 tiles.</summary>
-    public double[] TiledInverse { get; }
+    /// <summary>Per stage of the small-model recursion: the tiles its solve reads (see <see cref="RiccatiNewtonStep"/>).</summary>
+    public double[] TiledStages { get; }
 
     /// <summary>Per stage of the small-model recursion: G_k⁻¹g_k of the last solve, 4 wide.</summary>
     public double[] TiledFeedforward { get; }

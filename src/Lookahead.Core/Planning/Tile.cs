@@ -7,12 +7,12 @@ namespace Lookahead.Core.Planning;
 /// <summary>
 /// 4×4 tiles of doubles, row-major, one 256-bit vector per row, for the small-model Riccati recursion
 /// (<see cref="RiccatiNewtonStep"/>). Every operation reads all of its operands into registers before it stores, so
-/// a result may overwrite any of its operands. Needs AVX for the in-register transpose.
+/// a result may overwrite any of its operands. Needs AVX2 for the in-register transpose and broadcasts.
 /// </summary>
 internal static unsafe class Tile
 {
-    /// <summary>Whether this processor runs the tiles (AVX and FMA).</summary>
-    public static bool IsSupported => Avx.IsSupported && Fma.IsSupported;
+    /// <summary>Whether this processor runs the tiles (AVX2 and FMA).</summary>
+    public static bool IsSupported => Avx2.IsSupported && Fma.IsSupported;
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static void Copy(double* source, double* target)
@@ -118,21 +118,14 @@ internal static unsafe class Tile
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public static void StoreRow(double* source, int row, double* target) => Vector256.Store(Vector256.Load(source + (row * 4)), target);
 
-    /// <summary>
-    /// add + Σ_{l &lt; rows} x_l·(row l of the tile at y, rows <paramref name="stride"/> apart) — a tile's transpose
-    /// times x. <paramref name="scratch"/> (4 doubles) holds x while its entries are broadcast.
-    /// </summary>
+    /// <summary>add + Σ_l x_l·(row l of the tile at y) — the tile's transpose times x, the entries of x broadcast in registers.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public static Vector256<double> Combine(Vector256<double> x, double* y, Vector256<double> add, double* scratch, int rows = 4, int stride = 4)
+    public static Vector256<double> Combine(Vector256<double> x, double* y, Vector256<double> add)
     {
-        Vector256.Store(x, scratch);
-        var acc = add;
-        for (int l = 0; l < rows; l++)
-        {
-            acc = Vector256.FusedMultiplyAdd(Vector256.Create(scratch[l]), Vector256.Load(y + (l * stride)), acc);
-        }
-
-        return acc;
+        var first = Vector256.FusedMultiplyAdd(Avx2.Permute4x64(x, 0x00), Vector256.Load(y), add);
+        first = Vector256.FusedMultiplyAdd(Avx2.Permute4x64(x, 0x55), Vector256.Load(y + 4), first);
+        var second = Vector256.FusedMultiplyAdd(Avx2.Permute4x64(x, 0xFF), Vector256.Load(y + 12), Avx2.Permute4x64(x, 0xAA) * Vector256.Load(y + 8));
+        return first + second;
     }
 
     /// <summary>The first <paramref name="count"/> (≤ 4) doubles at <paramref name="source"/>, the rest zero; reads nothing beyond them.</summary>
