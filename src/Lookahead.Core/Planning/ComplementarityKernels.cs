@@ -84,23 +84,28 @@ internal static class ComplementarityKernels
         int i = 0;
         if (Vector.IsHardwareAccelerated)
         {
-            // Per lane, the ratio of each row that moves towards its bound; rows moving away are masked out (their
-            // quotient may be ±∞ or NaN and is never read).
+            // As the scalar loop below, a vector at a time: α only shrinks, so after the first few vectors almost none
+            // limits it, and only a vector that does pays for a division (rows moving away from their bound are masked
+            // out; their quotient may be ±∞ or NaN and is never read).
             var sv = MemoryMarshal.Cast<double, Vector<double>>(s);
             var lv = MemoryMarshal.Cast<double, Vector<double>>(lambda);
             var dsv = MemoryMarshal.Cast<double, Vector<double>>(ds);
             var dlv = MemoryMarshal.Cast<double, Vector<double>>(dl);
             var infinity = new Vector<double>(double.PositiveInfinity);
-            var best = infinity;
+            var a = new Vector<double>(alpha);
             for (int v = 0; v < sv.Length; v++)
             {
-                best = Vector.Min(best, Vector.ConditionalSelect(Vector.LessThan(dsv[v], Vector<double>.Zero), sv[v] / -dsv[v], infinity));
-                best = Vector.Min(best, Vector.ConditionalSelect(Vector.LessThan(dlv[v], Vector<double>.Zero), lv[v] / -dlv[v], infinity));
-            }
+                if (Vector.GreaterThanAny(a * -dsv[v], sv[v]))
+                {
+                    alpha = Math.Min(alpha, LaneMinimum(Vector.ConditionalSelect(Vector.LessThan(dsv[v], Vector<double>.Zero), sv[v] / -dsv[v], infinity)));
+                    a = new Vector<double>(alpha);
+                }
 
-            for (int lane = 0; lane < Vector<double>.Count; lane++)
-            {
-                alpha = Math.Min(alpha, best[lane]);
+                if (Vector.GreaterThanAny(a * -dlv[v], lv[v]))
+                {
+                    alpha = Math.Min(alpha, LaneMinimum(Vector.ConditionalSelect(Vector.LessThan(dlv[v], Vector<double>.Zero), lv[v] / -dlv[v], infinity)));
+                    a = new Vector<double>(alpha);
+                }
             }
 
             i = sv.Length * Vector<double>.Count;
@@ -178,6 +183,17 @@ internal static class ComplementarityKernels
         {
             shift[i] = lambda[i] - (((lambda[i] * value[i]) + (dsAffine[i] * dlAffine[i]) - target) * inverse[i]);
         }
+    }
+
+    private static double LaneMinimum(Vector<double> values)
+    {
+        double least = double.PositiveInfinity;
+        for (int lane = 0; lane < Vector<double>.Count; lane++)
+        {
+            least = Math.Min(least, values[lane]);
+        }
+
+        return least;
     }
 
     /// <summary>s += αΔs, λ += αΔλ.</summary>
