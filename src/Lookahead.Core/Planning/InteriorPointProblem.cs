@@ -30,7 +30,7 @@ namespace Lookahead.Core.Planning;
 /// </para>
 /// Built once per model and safe for concurrent solves: per-solve buffers come from a pool.
 /// </summary>
-internal sealed unsafe class InteriorPointProblem
+internal sealed unsafe partial class InteriorPointProblem
 {
     /// <summary>
     /// Default iteration cap per solve. The demo and the reference cases need 10–25 iterations (each shrinks the gap
@@ -112,6 +112,7 @@ internal sealed unsafe class InteriorPointProblem
     private readonly double automaticWith;
     private readonly StagewiseLimitRows rows;
     private readonly RiccatiNewtonStep newton;
+    private readonly ModelTiles? tiles;
     private readonly ForcedViolationBound violationBound;
     private readonly ConcurrentBag<InteriorPointWorkspace> pool = new();
 
@@ -120,8 +121,12 @@ internal sealed unsafe class InteriorPointProblem
     /// <param name="b">Discrete B.</param>
     /// <param name="terminal">The terminal weight P actually used.</param>
     /// <param name="maxIterations">Iteration cap per solve (default <see cref="DefaultMaxIterations"/>).</param>
+    /// <param name="allowSmallModelKernels">
+    /// Run small models on 4×4 tiles and fully limited models' rows as contiguous blocks (false only to compare with
+    /// the general loops in tests).
+    /// </param>
     /// <exception cref="ArgumentOutOfRangeException"><paramref name="maxIterations"/> is not positive.</exception>
-    public InteriorPointProblem(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, int maxIterations = DefaultMaxIterations)
+    public InteriorPointProblem(ValidatedModel model, Matrix<double> a, Matrix<double> b, Matrix<double> terminal, int maxIterations = DefaultMaxIterations, bool allowSmallModelKernels = true)
     {
         ArgumentOutOfRangeException.ThrowIfNegativeOrZero(maxIterations);
         MaxIterations = maxIterations;
@@ -178,9 +183,10 @@ internal sealed unsafe class InteriorPointProblem
 
         double[] softMin = SoftOutputs.Select(j => limits.OutputMin[j]).ToArray();
         double[] softMax = SoftOutputs.Select(j => limits.OutputMax[j]).ToArray();
-        rows = new StagewiseLimitRows(horizon, n, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax, SoftOutputs, softMin, softMax);
+        rows = new StagewiseLimitRows(horizon, n, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax, SoftOutputs, softMin, softMax, allowSmallModelKernels);
         violationBound = new ForcedViolationBound(a, b, csArray, softMin, softMax, horizon, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax);
-        newton = new RiccatiNewtonStep(horizon, aRows, bRows, qxRows, rRows, sRows, terminalRows, csArray, SlackWeights, nv > 0);
+        newton = new RiccatiNewtonStep(horizon, aRows, bRows, qxRows, rRows, sRows, terminalRows, csArray, SlackWeights, nv > 0, allowSmallModelKernels);
+        tiles = newton.Tiles;
         (automaticWithout, automaticWith) = AutomaticWeights(model, a, b, terminal);
     }
 
@@ -198,6 +204,9 @@ internal sealed unsafe class InteriorPointProblem
     public int Horizon => horizon;
 
     public int InputCount => m;
+
+    /// <summary>Whether the per-stage loops run on tiles (see <see cref="RiccatiNewtonStep.IsTiled"/>).</summary>
+    public bool IsTiled => tiles is not null;
 
     /// <summary>
     /// The active-set path's automatic ρ: 10⁴ × the largest diagonal entry of the condensed Hessian of the variant
@@ -707,6 +716,12 @@ internal sealed unsafe class InteriorPointProblem
     /// <summary>x_{k+1} = Ax_k + Bu_k from x_0, and the soft outputs c_sᵀx_k.</summary>
     private void Rollout(InteriorPointWorkspace ws, in Request request)
     {
+        if (tiles is not null)
+        {
+            RolloutTiled(ws, request);
+            return;
+        }
+
         double* x = Pointer(ws.States);
         double* u = Pointer(ws.Inputs);
         request.X0.CopyTo(ws.States);
@@ -739,6 +754,12 @@ internal sealed unsafe class InteriorPointProblem
 
     private void SoftOutputValues(double* x, double* y)
     {
+        if (tiles is not null)
+        {
+            SoftOutputValuesTiled(x, y);
+            return;
+        }
+
         for (int k = 1; k <= horizon; k++)
         {
             double* xk = x + (k * n);
@@ -760,6 +781,12 @@ internal sealed unsafe class InteriorPointProblem
     /// <summary>Stagewise gradient of ½J at the current point: per u_k, per x_k (k ≥ 1) and per ε.</summary>
     private void ObjectiveGradient(InteriorPointWorkspace ws, in Request request)
     {
+        if (tiles is not null)
+        {
+            ObjectiveGradientTiled(ws, request);
+            return;
+        }
+
         double* u = Pointer(ws.Inputs);
         double* x = Pointer(ws.States);
         double* gu = Pointer(ws.ObjectiveInputGradient);
@@ -832,6 +859,12 @@ internal sealed unsafe class InteriorPointProblem
     /// <summary>ReducedGradient = ∂/∂u of a stagewise gradient through the dynamics: μ_N = q_N, μ_k = q_k + Aᵀμ_{k+1}, g_k = r_k + Bᵀμ_{k+1}.</summary>
     private void ReduceGradient(InteriorPointWorkspace ws, double[] inputGradient, double[] stateGradient)
     {
+        if (tiles is not null)
+        {
+            ReduceGradientTiled(ws, inputGradient, stateGradient);
+            return;
+        }
+
         double* mu = Pointer(ws.CostateX);
         double* next = Pointer(ws.NextCostateX);
         double* reduced = Pointer(ws.ReducedGradient);

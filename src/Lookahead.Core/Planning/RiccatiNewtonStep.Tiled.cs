@@ -48,49 +48,6 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// <summary>Tiles a workspace needs for <see cref="FactorTiled"/>.</summary>
     internal const int TileCount = 13;
 
-    /// <summary>Constant tiles (A, Aᵀ, B, Bᵀ, CᵀQC, R, S, P, C_s, C_sᵀ), zero-padded to 4×4, by position.</summary>
-    private const int ConstantA = 0;
-    private const int ConstantB = 2;
-    private const int ConstantQx = 4;
-    private const int ConstantR = 5;
-    private const int ConstantS = 6;
-    private const int ConstantTerminal = 7;
-    private const int ConstantCs = 8;
-    private const int ConstantCsT = 9;
-
-    private static double[]? TiledConstants(bool tiled, double[] a, double[] b, double[] qx, double[] r, double[] s, double[] terminal, double[] cs, int n, int m, int ns)
-    {
-        if (!tiled)
-        {
-            return null;
-        }
-
-        var tiles = GC.AllocateArray<double>(10 * 16, pinned: true);
-        void Put(int tile, double[] source, int rows, int columns, bool transpose)
-        {
-            for (int i = 0; i < rows; i++)
-            {
-                for (int j = 0; j < columns; j++)
-                {
-                    int target = transpose ? (j * 4) + i : (i * 4) + j;
-                    tiles[(tile * 16) + target] = source[(i * columns) + j];
-                }
-            }
-        }
-
-        Put(ConstantA, a, n, n, transpose: false);
-        Put(ConstantA + 1, a, n, n, transpose: true);
-        Put(ConstantB, b, n, m, transpose: false);
-        Put(ConstantB + 1, b, n, m, transpose: true);
-        Put(ConstantQx, qx, n, n, transpose: false);
-        Put(ConstantR, r, m, m, transpose: false);
-        Put(ConstantS, s, m, m, transpose: false);
-        Put(ConstantTerminal, terminal, n, n, transpose: false);
-        Put(ConstantCs, cs, ns, n, transpose: false);
-        Put(ConstantCsT, cs, ns, n, transpose: true);
-        return tiles;
-    }
-
     /// <summary>As <see cref="Factor"/>, on 4×4 tiles; only for n, m, ns ≤ 4.</summary>
     /// <remarks>
     /// Each stage is split into three methods so that the JIT inlines every tile operation inside them (one method
@@ -98,16 +55,15 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// </remarks>
     private bool FactorTiled(InteriorPointWorkspace ws, bool hasPrevious)
     {
-        GC.KeepAlive(tiledConstants);
+        tiles!.KeepAlive();
         var rw = ws.Riccati;
         double* t = Pointer(rw.Tiles);
-        double* c = Pointer(tiledConstants!);
         double* outputSum = Pointer(ws.OutputBarrierSum);
         double* outputDifference = Pointer(ws.OutputBarrierDifference);
 
-        Tile.Copy(c + (16 * ConstantTerminal), t + (16 * TilePxx));
-        AddOutputCurvatureTiled(t + (16 * TilePxx), c + (16 * ConstantCs), outputSum + (horizon * ns), t + (16 * TileScratch));
-        SetOutputCouplingTiled(t + (16 * TileMx), c + (16 * ConstantCsT), outputDifference + (horizon * ns));
+        Tile.Copy(tiles!.Terminal, t + (16 * TilePxx));
+        AddOutputCurvatureTiled(t + (16 * TilePxx), tiles!.Cs, outputSum + (horizon * ns), t + (16 * TileScratch));
+        SetOutputCouplingTiled(t + (16 * TileMx), tiles!.CsTransposed, outputDifference + (horizon * ns));
         Tile.Clear(t + (16 * TilePxv));
         Tile.Clear(t + (16 * TilePvv));
         Tile.Clear(t + (16 * TileMv));
@@ -118,7 +74,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         {
             bool rateHere = nv > 0 && (k > 0 || hasPrevious);
             double* factor = Pointer(rw.Factor) + (k * m * m);
-            StageCurvature(ws, t, c, k, rateHere, factor);
+            StageCurvature(ws, t, k, rateHere, factor);
             if (!Cholesky(factor, m))
             {
                 return false;
@@ -138,8 +94,8 @@ internal sealed unsafe partial class RiccatiNewtonStep
                 break;
             }
 
-            StageGain(t, c, stage);
-            StageValue(t, c, stage, outputSum + (k * ns), outputDifference + (k * ns));
+            StageGain(t, stage);
+            StageValue(t, stage, outputSum + (k * ns), outputDifference + (k * ns));
         }
 
         return FactorSlackSystem(ws, t + (16 * TileW), 4);
@@ -149,16 +105,16 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// Yx = Pxx B + Pxv; X = R + D^u + BᵀYx + Pxvᵀ B + Pvv (exactly symmetric); L = BᵀMx + Mv; the rate block S + D^Δ;
     /// and the lower triangle of G_k = X + rate block into <paramref name="factor"/>.
     /// </summary>
-    private void StageCurvature(InteriorPointWorkspace ws, double* t, double* c, int k, bool rateHere, double* factor)
+    private void StageCurvature(InteriorPointWorkspace ws, double* t, int k, bool rateHere, double* factor)
     {
         double* pxv = t + (16 * TilePxv);
         double* yx = t + (16 * TileYx);
         double* rest = t + (16 * TileRest);
         double* rate = t + (16 * TileRate);
         double* scratch = t + (16 * TileScratch);
-        double* tb = c + (16 * ConstantB);
+        double* tb = tiles!.B;
         Tile.Times(t + (16 * TilePxx), tb, pxv, yx);
-        Tile.TransposeTimes(tb, yx, c + (16 * ConstantR), rest);
+        Tile.TransposeTimes(tb, yx, tiles!.R, rest);
         if (nv > 0)
         {
             Tile.TransposeTimes(pxv, tb, t + (16 * TilePvv), scratch);
@@ -179,7 +135,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
 
         if (rateHere)
         {
-            Tile.Copy(c + (16 * ConstantS), rate);
+            Tile.Copy(tiles!.S, rate);
             double* dd = Pointer(ws.RateBarrier) + (k * m);
             for (int i = 0; i < m; i++)
             {
@@ -213,11 +169,11 @@ internal sealed unsafe partial class RiccatiNewtonStep
     }
 
     /// <summary>K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ), kept with its transpose.</summary>
-    private void StageGain(double* t, double* c, double* stage)
+    private void StageGain(double* t, double* stage)
     {
         double* fxT = t + (16 * TileFxT);
         double* gainX = stage + StageGainX;
-        Tile.TransposeTimes(t + (16 * TileYx), c + (16 * ConstantA), null, fxT);
+        Tile.TransposeTimes(t + (16 * TileYx), tiles!.A, null, fxT);
         Tile.Copy(fxT, gainX);
         SolveTile(stage + StageInverse, gainX);
         Tile.Transpose(gainX, stage + StageGainXTransposed);
@@ -235,7 +191,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised (no cancellation when a rate barrier is huge);
     /// M^v = (S + D^Δ)G⁻¹L. The old Pxx and Mx are read before they are overwritten.
     /// </summary>
-    private void StageValue(double* t, double* c, double* stage, double* outputSum, double* outputDifference)
+    private void StageValue(double* t, double* stage, double* outputSum, double* outputDifference)
     {
         double* pxx = t + (16 * TilePxx);
         double* mx = t + (16 * TileMx);
@@ -245,16 +201,16 @@ internal sealed unsafe partial class RiccatiNewtonStep
         double* rate = t + (16 * TileRate);
         double* work = t + (16 * TileWork);
         double* scratch = t + (16 * TileScratch);
-        double* ta = c + (16 * ConstantA);
+        double* ta = tiles!.A;
         Tile.Times(pxx, ta, null, work);
-        Tile.TransposeTimes(ta, work, c + (16 * ConstantQx), scratch);
+        Tile.TransposeTimes(ta, work, tiles!.Qx, scratch);
         Tile.TransposeTimes(fxT, gainX, scratch, scratch, subtract: true);
         Tile.Symmetrise(scratch);
-        AddOutputCurvatureTiled(scratch, c + (16 * ConstantCs), outputSum, work);
+        AddOutputCurvatureTiled(scratch, tiles!.Cs, outputSum, work);
         Tile.Copy(scratch, pxx);
         if (ns > 0)
         {
-            SetOutputCouplingTiled(scratch, c + (16 * ConstantCsT), outputDifference);
+            SetOutputCouplingTiled(scratch, tiles!.CsTransposed, outputDifference);
             Tile.TransposeTimes(ta, mx, scratch, scratch);
             Tile.TransposeTimes(fxT, slackGain, scratch, mx, subtract: true);
         }
@@ -307,14 +263,13 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// <summary>As <see cref="Solve"/>, with the tiles of the last <see cref="FactorTiled"/>.</summary>
     private void SolveTiled(InteriorPointWorkspace ws)
     {
-        GC.KeepAlive(tiledConstants);
+        tiles!.KeepAlive();
         var rw = ws.Riccati;
-        double* c = Pointer(tiledConstants!);
-        double* ta = c + (16 * ConstantA);
-        double* tat = c + (16 * (ConstantA + 1));
-        double* tb = c + (16 * ConstantB);
-        double* tbt = c + (16 * (ConstantB + 1));
-        double* ts = c + (16 * ConstantS);
+        double* ta = tiles!.A;
+        double* tat = tiles!.ATransposed;
+        double* tb = tiles!.B;
+        double* tbt = tiles!.BTransposed;
+        double* ts = tiles!.S;
         double* ru = Pointer(ws.InputGradient);
         double* qState = Pointer(ws.StateGradient);
         double* rateBarrier = Pointer(ws.RateBarrier);

@@ -49,7 +49,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     private readonly double* terminal;
     private readonly double* cs;
     private readonly double* slackWeights;
-    private readonly double[]? tiledConstants;
+    private readonly ModelTiles? tiles;
 
     /// <param name="a">A, n×n row-major.</param>
     /// <param name="b">B, n×m row-major.</param>
@@ -112,11 +112,14 @@ internal sealed unsafe partial class RiccatiNewtonStep
         this.terminal = at[7];
         this.cs = at[8];
         this.slackWeights = at[9];
-        tiledConstants = TiledConstants(allowTiles && Tile.IsSupported && n <= 4 && m <= 4 && ns <= 4, a, b, qx, r, s, terminal, cs, n, m, ns);
+        tiles = allowTiles && Tile.IsSupported && n <= 4 && m <= 4 && ns <= 4 ? new ModelTiles(a, b, qx, r, s, terminal, cs, n, m, ns) : null;
     }
 
     /// <summary>Whether <see cref="Factor"/> runs on 4×4 tiles (n, m and ns ≤ 4 on a processor with AVX and FMA).</summary>
-    public bool IsTiled => tiledConstants is not null;
+    public bool IsTiled => tiles is not null;
+
+    /// <summary>The model's matrices as tiles when <see cref="IsTiled"/>, for the other per-stage loops of the solve.</summary>
+    public ModelTiles? Tiles => tiles;
 
     public RiccatiWorkspace CreateWorkspace() => new(n, m, nv, ns, horizon);
 
@@ -129,7 +132,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// <returns>False when a G_k or the slack system is not numerically positive definite.</returns>
     public bool Factor(InteriorPointWorkspace ws, bool hasPrevious)
     {
-        if (tiledConstants is not null)
+        if (tiles is not null)
         {
             return FactorTiled(ws, hasPrevious);
         }
@@ -368,7 +371,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// </summary>
     public void Solve(InteriorPointWorkspace ws)
     {
-        if (tiledConstants is not null)
+        if (tiles is not null)
         {
             SolveTiled(ws);
             return;

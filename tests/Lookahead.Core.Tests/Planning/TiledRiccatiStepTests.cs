@@ -1,5 +1,7 @@
 using FsCheck.Xunit;
+using Lookahead.Core.Models;
 using Lookahead.Core.Planning;
+using Lookahead.Core.Tests.Support;
 using Xunit;
 
 namespace Lookahead.Core.Tests.Planning;
@@ -122,5 +124,69 @@ public class TiledRiccatiStepTests
         }
 
         return result;
+    }
+}
+
+/// <summary>
+/// Whole limited plans of small models on the tiled and contiguous paths against the same plans on the general loops:
+/// the demo over its operating range, and random small models with every limit or only some of them, rate weights or
+/// none, targets or none. The two run the same iteration in another arithmetic order, so they agree to rounding.
+/// </summary>
+public class SmallModelKernelPlanTests
+{
+    [Fact]
+    public void DemoPlansEqualTheGeneralLoops()
+    {
+        var model = ModelCompiler.Compile(DemoModel.Document);
+        var fast = InteriorPointPlans.Build(model);
+        var general = InteriorPointPlans.Build(model, smallModelKernels: false);
+        Assert.True(fast.IsTiled || !Tile.IsSupported);
+        Assert.False(general.IsTiled);
+        foreach (var request in DemoModel.States(32, seed: 23))
+        {
+            Compare(model, fast, general, request, $"demo x₀ = [{string.Join(", ", request.State.Select(v => v.ToString("g4")))}], u₋₁ {request.PreviousInput is not null}");
+        }
+    }
+
+    [Property(MaxTest = 60)]
+    public void RandomSmallModelPlansEqualTheGeneralLoops(int seed)
+    {
+        var random = new Random(seed);
+        int n = random.Next(1, 5);
+        int m = random.Next(1, 5);
+        int p = random.Next(1, 5);
+        int horizon = random.Next(2, 25);
+        var (a, b) = TestModels.Random(random, n, m, 0.6 + (0.6 * random.NextDouble()));
+        var c = Enumerable.Range(0, p).Select(_ => TestModels.RandomVector(random, n)).ToArray();
+        double[] q = Enumerable.Range(0, p).Select(_ => 0.1 + random.NextDouble()).ToArray();
+        double[] r = Enumerable.Range(0, m).Select(_ => 0.05 + random.NextDouble()).ToArray();
+        double[]? s = random.Next(2) == 0 ? null : Enumerable.Range(0, m).Select(_ => random.NextDouble()).ToArray();
+        bool every = random.Next(2) == 0;
+        double?[] Side(int count, double value, bool present) => Enumerable.Range(0, count).Select(i => present || i % 2 == 0 ? value : (double?)null).ToArray();
+        var limits = new LimitsSpec(
+            Side(m, -1, every), Side(m, 1, every), Side(m, -0.3, every), Side(m, 0.3, every),
+            Side(p, -0.5, every || random.Next(2) == 0), Side(p, 0.5, every), Enumerable.Repeat(10.0, p).ToArray());
+        var model = ModelCompiler.Compile(TestModels.Discrete(a, b, horizon, q, r, null, c, s, limits));
+        var fast = InteriorPointPlans.Build(model);
+        var general = InteriorPointPlans.Build(model, smallModelKernels: false);
+        var request = new PlanRequest(TestModels.RandomVector(random, n, 3), random.Next(2) == 0 ? null : TestModels.RandomVector(random, p), random.Next(2) == 0 ? null : TestModels.RandomVector(random, m, 0.5));
+        Compare(model, fast, general, request, $"seed {seed}: n = {n}, m = {m}, p = {p}, N = {horizon}, every limit {every}, rate weight {s is not null}");
+    }
+
+    private static void Compare(CompiledModel model, InteriorPointProblem fast, InteriorPointProblem general, PlanRequest request, string what)
+    {
+        double[]? targetState = request.Reference is null ? null : model.Plan(request).Target?.State;
+        double[]? targetInput = request.Reference is null ? null : model.Plan(request).Target?.Input;
+        var (expected, expectedOutcome) = InteriorPointPlans.Solve(model, general, request, targetState, targetInput, null);
+        var (actual, actualOutcome) = InteriorPointPlans.Solve(model, fast, request, targetState, targetInput, null);
+        Assert.True(expected.Status == actual.Status, $"{what}: status {actual.Status}, general loops {expected.Status}");
+        Assert.True(Math.Abs(expectedOutcome.Iterations - actualOutcome.Iterations) <= 1, $"{what}: {actualOutcome.Iterations} iterations, general loops {expectedOutcome.Iterations}");
+        double scale = 1 + expected.Inputs.Max(Math.Abs);
+        for (int i = 0; i < expected.Inputs.Length; i++)
+        {
+            Assert.True(Math.Abs(expected.Inputs[i] - actual.Inputs[i]) <= 1e-7 * scale, $"{what}: u[{i}] = {actual.Inputs[i]:R}, general loops {expected.Inputs[i]:R}");
+        }
+
+        Assert.True(Math.Abs(expected.Cost - actual.Cost) <= 1e-8 * (1 + Math.Abs(expected.Cost)), $"{what}: cost {actual.Cost:R}, general loops {expected.Cost:R}");
     }
 }

@@ -6,11 +6,13 @@ namespace Lookahead.Core.Tests.Support;
 /// <summary>Plans of a compiled model answered by the interior-point path, finished the way CompiledModel.Plan finishes them.</summary>
 internal static class InteriorPointPlans
 {
-    public static InteriorPointProblem Build(CompiledModel model) => new(
+    /// <param name="smallModelKernels">False to run the general loops even where tiles and contiguous rows apply.</param>
+    public static InteriorPointProblem Build(CompiledModel model, bool smallModelKernels = true) => new(
         model.Model,
         Matrix<double>.Build.DenseOfRowArrays(model.DiscreteA),
         Matrix<double>.Build.DenseOfRowArrays(model.DiscreteB),
-        Matrix<double>.Build.DenseOfRowArrays(model.TerminalWeight));
+        Matrix<double>.Build.DenseOfRowArrays(model.TerminalWeight),
+        allowSmallModelKernels: smallModelKernels);
 
     /// <summary>
     /// The dual active-set plan of <paramref name="request"/>, as the reference for the interior-point path:
