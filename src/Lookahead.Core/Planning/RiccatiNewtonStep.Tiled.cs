@@ -27,14 +27,17 @@ internal sealed unsafe partial class RiccatiNewtonStep
     private const int TileFxT = 10;
     private const int TileWork = 11;
     private const int TileScratch = 12;
+    private const int TileFactor = 13;
 
     /// <summary>
     /// Per-stage tiles kept from <see cref="FactorTiled"/> for <see cref="SolveTiled"/>, by offset in a stage's block of
-    /// <see cref="StageBlock"/> doubles: L⁻¹ and L⁻ᵀ of G_k's factor, the gain K_k = [K_x K_v] and its transpose, G_k⁻¹L
-    /// and its transpose. Whole zero-padded tiles, so the solve multiplies by all four rows without size checks.
+    /// <see cref="StageBlock"/> doubles: with G_k = LDLᵀ (L unit lower triangular), D⁻¹L⁻¹ and its transpose, the gain
+    /// K_k = [K_x K_v] and its transpose, G_k⁻¹L and its transpose, and L⁻¹. Whole zero-padded tiles, so the solve
+    /// multiplies by all four rows without size checks.
     /// </summary>
     private const int StageInverse = 0;
     private const int StageInverseTransposed = 16;
+    private const int StageUnitInverse = 128;
     private const int StageGainX = 32;
     private const int StageGainV = 48;
     private const int StageGainXTransposed = 64;
@@ -43,10 +46,10 @@ internal sealed unsafe partial class RiccatiNewtonStep
     private const int StageSlackGainTransposedOffset = 112;
 
     /// <summary>Doubles per stage in <see cref="RiccatiWorkspace.TiledStages"/>.</summary>
-    internal const int StageBlock = 128;
+    internal const int StageBlock = 144;
 
     /// <summary>Tiles a workspace needs for <see cref="FactorTiled"/>.</summary>
-    internal const int TileCount = 13;
+    internal const int TileCount = 14;
 
     /// <summary>As <see cref="Factor"/>, on 4×4 tiles; only for n, m, ns ≤ 4.</summary>
     /// <remarks>
@@ -73,17 +76,15 @@ internal sealed unsafe partial class RiccatiNewtonStep
         for (int k = horizon - 1; k >= 0; k--)
         {
             bool rateHere = nv > 0 && (k > 0 || hasPrevious);
-            double* factor = Pointer(rw.Factor) + (k * m * m);
+            double* factor = t + (16 * TileFactor);
             StageCurvature(ws, t, k, rateHere, factor);
-            if (!Cholesky(factor, m))
+
+            // G⁻¹ = L⁻ᵀ(D⁻¹L⁻¹) applied as two tile products (independent rows, no substitution chain).
+            double* stage = Pointer(rw.TiledStages) + (k * StageBlock);
+            if (!FactorTile(factor, stage))
             {
                 return false;
             }
-
-            // G⁻¹ = L⁻ᵀL⁻¹ applied as two tile products (independent rows, no substitution chain): L⁻¹ and its transpose.
-            double* stage = Pointer(rw.TiledStages) + (k * StageBlock);
-            InvertFactor(factor, stage + StageInverse);
-            Tile.Transpose(stage + StageInverse, stage + StageInverseTransposed);
             if (ns > 0)
             {
                 StageSlackGain(t, stage);
@@ -103,7 +104,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
 
     /// <summary>
     /// Yx = Pxx B + Pxv; X = R + D^u + BᵀYx + Pxvᵀ B + Pvv (exactly symmetric); L = BᵀMx + Mv; the rate block S + D^Δ;
-    /// and the lower triangle of G_k = X + rate block into <paramref name="factor"/>.
+    /// and the lower triangle of G_k = X + rate block into the tile <paramref name="factor"/>.
     /// </summary>
     private void StageCurvature(InteriorPointWorkspace ws, double* t, int k, bool rateHere, double* factor)
     {
@@ -151,7 +152,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         {
             for (int j = 0; j <= i; j++)
             {
-                factor[(i * m) + j] = rest[(i * 4) + j] + rate[(i * 4) + j];
+                factor[(i * 4) + j] = rest[(i * 4) + j] + rate[(i * 4) + j];
             }
         }
     }
@@ -163,7 +164,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         double* slackGain = stage + StageSlackGainOffset;
         double* w = t + (16 * TileW);
         Tile.Copy(coupling, slackGain);
-        SolveTile(stage + StageInverse, slackGain);
+        SolveTile(stage, slackGain);
         Tile.Transpose(slackGain, stage + StageSlackGainTransposedOffset);
         Tile.TransposeTimes(coupling, slackGain, w, w, subtract: true);
     }
@@ -175,13 +176,13 @@ internal sealed unsafe partial class RiccatiNewtonStep
         double* gainX = stage + StageGainX;
         Tile.TransposeTimes(t + (16 * TileYx), tiles!.A, null, fxT);
         Tile.Copy(fxT, gainX);
-        SolveTile(stage + StageInverse, gainX);
+        SolveTile(stage, gainX);
         Tile.Transpose(gainX, stage + StageGainXTransposed);
         if (nv > 0)
         {
             double* gainV = stage + StageGainV;
             Tile.Negate(t + (16 * TileRate), gainV);
-            SolveTile(stage + StageInverse, gainV);
+            SolveTile(stage, gainV);
             Tile.Transpose(gainV, stage + StageGainVTransposed);
         }
     }
@@ -219,7 +220,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         {
             Tile.TransposeTimes(gainX, rate, null, t + (16 * TilePxv));
             Tile.Copy(t + (16 * TileRest), work);
-            SolveTile(stage + StageInverse, work);
+            SolveTile(stage, work);
             Tile.Times(rate, work, null, t + (16 * TilePvv));
             Tile.Symmetrise(t + (16 * TilePvv));
             if (ns > 0)
@@ -229,35 +230,76 @@ internal sealed unsafe partial class RiccatiNewtonStep
         }
     }
 
-    /// <summary>X ← G⁻¹X = L⁻ᵀ(L⁻¹X) for a tile X, with L⁻¹ from <see cref="InvertFactor"/>; rows ≥ m stay zero.</summary>
+    /// <summary>X ← G⁻¹X = L⁻ᵀ(D⁻¹L⁻¹X) for a tile X, with the stage's tiles from <see cref="FactorTile"/>; rows ≥ m stay zero.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static void SolveTile(double* inverse, double* x)
+    private static void SolveTile(double* stage, double* x)
     {
-        Tile.Times(inverse, x, null, x);
-        Tile.TransposeTimes(inverse, x, null, x);
+        Tile.Times(stage + StageInverse, x, null, x);
+        Tile.TransposeTimes(stage + StageUnitInverse, x, null, x);
     }
 
     /// <summary>
-    /// L⁻¹ as a zero-padded lower-triangular tile, from the in-place factor of <see cref="Cholesky"/> (whose diagonal
-    /// already holds 1/L_ii), by column-wise substitution.
+    /// G = LDLᵀ for the m×m lower triangle of the tile <paramref name="g"/> — no square roots, one division per column,
+    /// which shortens the stage's dependency chain — and from it L⁻¹, D⁻¹L⁻¹ and (D⁻¹L⁻¹)ᵀ into the stage's tiles.
     /// </summary>
-    private void InvertFactor(double* factor, double* inverse)
+    /// <returns>False when a pivot is not positive and finite (G not numerically positive definite).</returns>
+    private bool FactorTile(double* g, double* stage)
     {
-        Tile.Clear(inverse);
+        double* l = stackalloc double[16];
+        double* inverseD = stackalloc double[4];
         for (int j = 0; j < m; j++)
         {
-            inverse[(j * 4) + j] = factor[(j * m) + j];
+            double d = g[(j * 4) + j];
+            for (int k = 0; k < j; k++)
+            {
+                d -= l[(j * 4) + k] * l[(j * 4) + k] * inverseD[k];
+            }
+
+            if (!(d > 0) || !double.IsFinite(d))
+            {
+                return false;
+            }
+
+            inverseD[j] = 1 / d;
+            for (int i = j + 1; i < m; i++)
+            {
+                // l holds L·D column by column while it is built (L_ij·D_j), so each entry needs one product.
+                double sum = g[(i * 4) + j];
+                for (int k = 0; k < j; k++)
+                {
+                    sum -= l[(i * 4) + k] * l[(j * 4) + k] * inverseD[k];
+                }
+
+                l[(i * 4) + j] = sum;
+            }
+        }
+
+        // L_ij = (LD)_ij / D_j; L⁻¹ by forward substitution on the unit diagonal.
+        double* unit = stage + StageUnitInverse;
+        Tile.Clear(unit);
+        for (int j = 0; j < m; j++)
+        {
+            unit[(j * 4) + j] = 1;
             for (int i = j + 1; i < m; i++)
             {
                 double sum = 0;
                 for (int k = j; k < i; k++)
                 {
-                    sum += factor[(i * m) + k] * inverse[(k * 4) + j];
+                    sum += l[(i * 4) + k] * inverseD[k] * unit[(k * 4) + j];
                 }
 
-                inverse[(i * 4) + j] = -sum * factor[(i * m) + i];
+                unit[(i * 4) + j] = -sum;
             }
         }
+
+        double* left = stage + StageInverse;
+        for (int i = 0; i < 4; i++)
+        {
+            Vector256.Store(Vector256.Load(unit + (i * 4)) * Vector256.Create(i < m ? inverseD[i] : 0), left + (i * 4));
+        }
+
+        Tile.Transpose(left, stage + StageInverseTransposed);
+        return true;
     }
 
     /// <summary>As <see cref="Solve"/>, with the tiles of the last <see cref="FactorTiled"/>.</summary>
@@ -285,7 +327,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
         {
             double* stage = stages + (k * StageBlock);
             var g = Tile.Combine(px, tb, Tile.LoadPartial(ru + (k * m), m) + pv);
-            var kk = Tile.Combine(Tile.Combine(g, stage + StageInverseTransposed, zero), stage + StageInverse, zero);
+            var kk = Tile.Combine(Tile.Combine(g, stage + StageInverseTransposed, zero), stage + StageUnitInverse, zero);
             Vector256.Store(kk, feedforward + (k * 4));
             if (ns > 0)
             {
