@@ -42,60 +42,73 @@ internal sealed unsafe partial class InteriorPointProblem
 
     private void ObjectiveGradientTiled(InteriorPointWorkspace ws, in Request request)
     {
-        tiles!.KeepAlive();
-        double* u = Pointer(ws.Inputs);
-        double* x = Pointer(ws.States);
-        double* gu = Pointer(ws.ObjectiveInputGradient);
-        double* gx = Pointer(ws.ObjectiveStateGradient);
-        var zero = Vector256<double>.Zero;
         fixed (double* us = request.TargetInput, xs = request.TargetState, previous = request.PreviousInput)
         {
-            var targetInput = request.TargetInput.IsEmpty ? zero : Tile.LoadPartial(us, m);
-            var before = request.HasPrevious ? Tile.LoadPartial(previous, m) : zero;
-            var uk = Tile.LoadPartial(u, m);
-            for (int k = 0; k < horizon; k++)
-            {
-                // R(u_k − u_s); with a rate weight S(u_k − u_{k−1}) when that term exists and −S(u_{k+1} − u_k).
-                var g = Tile.Combine(uk - targetInput, tiles.RTransposed, zero);
-                var next = k + 1 < horizon ? Tile.LoadPartial(u + ((k + 1) * m), m) : zero;
-                if (hasRateWeight)
-                {
-                    if (k > 0 || request.HasPrevious)
-                    {
-                        g = Tile.Combine(uk - before, tiles.STransposed, g);
-                    }
-
-                    if (k + 1 < horizon)
-                    {
-                        g = Tile.Combine(uk - next, tiles.STransposed, g);
-                    }
-                }
-
-                Tile.StorePartial(g, gu + (k * m), m);
-                before = uk;
-                uk = next;
-            }
-
-            // x_k, 1 ≤ k < N: CᵀQC x_k − CᵀQr; x_N: P(x_N − x_s).
-            var outputTerm = -Tile.LoadPartial(Pointer(ws.OutputTerm), n);
-            for (int k = 1; k < horizon; k++)
-            {
-                Tile.StorePartial(Tile.Combine(Tile.LoadPartial(x + (k * n), n), tiles.Qx, outputTerm), gx + (k * n), n);
-            }
-
-            var xN = Tile.LoadPartial(x + (horizon * n), n);
-            if (!request.TargetState.IsEmpty)
-            {
-                xN -= Tile.LoadPartial(xs, n);
-            }
-
-            Tile.StorePartial(Tile.Combine(xN, tiles.Terminal, zero), gx + (horizon * n), n);
+            InputGradientTiled(ws, request.TargetInput.IsEmpty ? null : us, request.HasPrevious ? previous : null);
+            StateGradientTiled(ws, request.TargetState.IsEmpty ? null : xs);
         }
 
         for (int t = 0; t < ns; t++)
         {
             ws.ObjectiveSlackGradient[t] = (0.5 * request.LinearWeights[t]) + (SlackWeights[t] * ws.Slacks[t]);
         }
+    }
+
+    /// <summary>Per u_k: R(u_k − u_s), and with a rate weight S(u_k − u_{k−1}) when that term exists and −S(u_{k+1} − u_k).</summary>
+    private void InputGradientTiled(InteriorPointWorkspace ws, double* targetInput, double* previous)
+    {
+        tiles!.KeepAlive();
+        double* u = Pointer(ws.Inputs);
+        double* gu = Pointer(ws.ObjectiveInputGradient);
+        double* rt = tiles.RTransposed;
+        double* st = tiles.STransposed;
+        var zero = Vector256<double>.Zero;
+        var target = targetInput == null ? zero : Tile.LoadPartial(targetInput, m);
+        var before = previous == null ? zero : Tile.LoadPartial(previous, m);
+        var uk = Tile.LoadPartial(u, m);
+        for (int k = 0; k < horizon; k++)
+        {
+            var g = Tile.Combine(uk - target, rt, zero);
+            var next = k + 1 < horizon ? Tile.LoadPartial(u + ((k + 1) * m), m) : zero;
+            if (hasRateWeight)
+            {
+                if (k > 0 || previous != null)
+                {
+                    g = Tile.Combine(uk - before, st, g);
+                }
+
+                if (k + 1 < horizon)
+                {
+                    g = Tile.Combine(uk - next, st, g);
+                }
+            }
+
+            Tile.StorePartial(g, gu + (k * m), m);
+            before = uk;
+            uk = next;
+        }
+    }
+
+    /// <summary>Per x_k, 1 ≤ k &lt; N: CᵀQC x_k − CᵀQr; for x_N: P(x_N − x_s).</summary>
+    private void StateGradientTiled(InteriorPointWorkspace ws, double* targetState)
+    {
+        tiles!.KeepAlive();
+        double* x = Pointer(ws.States);
+        double* gx = Pointer(ws.ObjectiveStateGradient);
+        double* qx = tiles.Qx;
+        var outputTerm = -Tile.LoadPartial(Pointer(ws.OutputTerm), n);
+        for (int k = 1; k < horizon; k++)
+        {
+            Tile.StorePartial(Tile.Combine(Tile.LoadPartial(x + (k * n), n), qx, outputTerm), gx + (k * n), n);
+        }
+
+        var xN = Tile.LoadPartial(x + (horizon * n), n);
+        if (targetState != null)
+        {
+            xN -= Tile.LoadPartial(targetState, n);
+        }
+
+        Tile.StorePartial(Tile.Combine(xN, tiles.Terminal, Vector256<double>.Zero), gx + (horizon * n), n);
     }
 
     private void ReduceGradientTiled(InteriorPointWorkspace ws, double[] inputGradient, double[] stateGradient)
