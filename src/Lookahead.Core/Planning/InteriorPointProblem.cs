@@ -111,6 +111,8 @@ internal sealed unsafe partial class InteriorPointProblem
     private readonly double automaticWithout;
     private readonly double automaticWith;
     private readonly StagewiseLimitRows rows;
+    private readonly StagewiseLimitRows unscaledRows;
+    private readonly double[] inputScale;
     private readonly RiccatiNewtonStep newton;
     private readonly ModelTiles? tiles;
     private readonly ForcedViolationBound violationBound;
@@ -157,6 +159,27 @@ internal sealed unsafe partial class InteriorPointProblem
         double[] cqRows = DenseMatrix.RowMajor(c.TransposeThisAndMultiply(model.OutputWeight));
         double[] rRows = DenseMatrix.RowMajor(model.InputWeight);
         double[] sRows = DenseMatrix.RowMajor(model.InputRateWeight);
+
+        // The iteration runs on inputs measured in about their own range (u = σ·v), so a plant in % or kW takes the
+        // same path as one in fractions: B, R and S absorb σ, the input limits are divided by it. σ is a power of
+        // two, so scaling and unscaling are exact.
+        inputScale = InputScales(limits, m);
+        for (int i = 0; i < n; i++)
+        {
+            for (int j = 0; j < m; j++)
+            {
+                bRows[(i * m) + j] *= inputScale[j];
+            }
+        }
+
+        for (int i = 0; i < m; i++)
+        {
+            for (int j = 0; j < m; j++)
+            {
+                rRows[(i * m) + j] *= inputScale[i] * inputScale[j];
+                sRows[(i * m) + j] *= inputScale[i] * inputScale[j];
+            }
+        }
         double[] terminalRows = DenseMatrix.RowMajor((terminal + terminal.Transpose()) * 0.5);
 
         // One pinned block for the model's matrices, so the request-time loops address them directly.
@@ -183,7 +206,9 @@ internal sealed unsafe partial class InteriorPointProblem
 
         double[] softMin = SoftOutputs.Select(j => limits.OutputMin[j]).ToArray();
         double[] softMax = SoftOutputs.Select(j => limits.OutputMax[j]).ToArray();
-        rows = new StagewiseLimitRows(horizon, n, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax, SoftOutputs, softMin, softMax, allowSmallModelKernels);
+        double[] Scaled(double[] values) => values.Select((v, i) => v / inputScale[i]).ToArray();
+        rows = new StagewiseLimitRows(horizon, n, Scaled(limits.InputMin), Scaled(limits.InputMax), Scaled(limits.InputRateMin), Scaled(limits.InputRateMax), SoftOutputs, softMin, softMax, allowSmallModelKernels);
+        unscaledRows = new StagewiseLimitRows(horizon, n, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax, SoftOutputs, softMin, softMax, allowContiguous: false);
         violationBound = new ForcedViolationBound(a, b, csArray, softMin, softMax, horizon, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax);
         newton = new RiccatiNewtonStep(horizon, aRows, bRows, qxRows, rRows, sRows, terminalRows, csArray, SlackWeights, nv > 0, allowSmallModelKernels);
         tiles = newton.Tiles;
@@ -209,6 +234,27 @@ internal sealed unsafe partial class InteriorPointProblem
     public bool IsTiled => tiles is not null;
 
     /// <summary>
+    /// σ_i per input: the power of two nearest to its window umax − umin, or to its rate window when the window is
+    /// open, else 1 (kept within 2^±60, so σ² never under- or overflows the weights).
+    /// </summary>
+    private static double[] InputScales(ValidatedLimits limits, int m)
+    {
+        var scales = new double[m];
+        for (int i = 0; i < m; i++)
+        {
+            double range = limits.InputMax[i] - limits.InputMin[i];
+            if (!(double.IsFinite(range) && range > 0))
+            {
+                range = limits.InputRateMax[i] - limits.InputRateMin[i];
+            }
+
+            scales[i] = double.IsFinite(range) && range > 0 ? Math.ScaleB(1.0, Math.Clamp((int)Math.Round(Math.Log2(range)), -60, 60)) : 1;
+        }
+
+        return scales;
+    }
+
+    /// <summary>
     /// The active-set path's automatic ρ: 10⁴ × the largest diagonal entry of the condensed Hessian of the variant
     /// (with or without the Δu_0 term), at least 10⁴.
     /// </summary>
@@ -219,7 +265,7 @@ internal sealed unsafe partial class InteriorPointProblem
     public void Return(InteriorPointWorkspace workspace) => pool.Add(workspace);
 
     /// <summary>Whether input <paramref name="input"/> cannot reach its window within its first rate step from u_{−1} (the active-set path's test).</summary>
-    public bool IsFirstMoveUnreachable(ReadOnlySpan<double> previousInput, int input) => rows.IsFirstMoveUnreachable(previousInput, input);
+    public bool IsFirstMoveUnreachable(ReadOnlySpan<double> previousInput, int input) => unscaledRows.IsFirstMoveUnreachable(previousInput, input);
 
     /// <summary>
     /// A lower bound on the largest soft-limit slack any plan respecting the hard limits must have
@@ -229,7 +275,7 @@ internal sealed unsafe partial class InteriorPointProblem
         violationBound.Compute(x0, firstRateRows ? previousInput : default, []);
 
     /// <summary>The receiving system checks limits exactly, so inputs a rounding error outside their window are put back on it.</summary>
-    public void ClipToInputLimits(Span<double> inputs) => rows.ClipToInputLimits(inputs);
+    public void ClipToInputLimits(Span<double> inputs) => unscaledRows.ClipToInputLimits(inputs);
 
     /// <summary>After a solve in <paramref name="ws"/>, the limits that hold with equality (see <see cref="StagewiseLimitRows.ActiveLimits"/>).</summary>
     public void ActiveLimits(InteriorPointWorkspace ws, bool firstRateRows, List<ActiveLimit> active) => rows.ActiveLimits(ws, rows.Layout(firstRateRows), active);
@@ -275,6 +321,20 @@ internal sealed unsafe partial class InteriorPointProblem
         bool hasPrevious = !previousInput.IsEmpty;
         bool dropFirstRate = false;
         double boundScale = rows.Scale;
+        var scaledPrevious = ws.ScaledPreviousInput.AsSpan(0, hasPrevious ? m : 0);
+        var scaledTarget = ws.ScaledTargetInput.AsSpan(0, targetInput.IsEmpty ? 0 : m);
+        for (int i = 0; i < scaledPrevious.Length; i++)
+        {
+            scaledPrevious[i] = previousInput[i] / inputScale[i];
+        }
+
+        for (int i = 0; i < scaledTarget.Length; i++)
+        {
+            scaledTarget[i] = targetInput[i] / inputScale[i];
+        }
+
+        previousInput = scaledPrevious;
+        targetInput = scaledTarget;
         for (int i = 0; hasPrevious && i < m; i++)
         {
             dropFirstRate |= rows.IsFirstMoveUnreachable(previousInput, i);
@@ -283,7 +343,10 @@ internal sealed unsafe partial class InteriorPointProblem
 
         var request = new Request(x0, previousInput, reference, targetState, targetInput, linearWeights, rows.Layout(hasPrevious && !dropFirstRate), hasPrevious, boundScale);
         var status = Iterate(ws, request, out int iterations);
-        ws.Inputs.AsSpan(0, horizon * m).CopyTo(inputs);
+        for (int j = 0; j < horizon * m; j++)
+        {
+            inputs[j] = ws.Inputs[j] * inputScale[j % m];
+        }
         for (int t = 0; t < ns; t++)
         {
             slacks[t] = Math.Max(ws.Slacks[t], 0);

@@ -12,6 +12,8 @@ internal sealed class InteriorPointWorkspace
         Riccati = riccati;
         int nm = horizon * m;
         Inputs = Pinned(nm);
+        ScaledPreviousInput = Pinned(m);
+        ScaledTargetInput = Pinned(m);
         States = Pinned((horizon + 1) * n);
         Slacks = Pinned(ns);
         SoftOutputs = Pinned((horizon + 1) * ns);
@@ -62,6 +64,11 @@ internal sealed class InteriorPointWorkspace
 
     // Primal point: u (N×m), x (x_0 … x_N), ε, and the softly limited outputs y_{k,s} = c_sᵀx_k.
     public double[] Inputs { get; }
+
+    /// <summary>u_{−1} and u_s of the current solve in the iteration's scaled inputs.</summary>
+    public double[] ScaledPreviousInput { get; }
+
+    public double[] ScaledTargetInput { get; }
     public double[] States { get; }
     public double[] Slacks { get; }
     public double[] SoftOutputs { get; }
