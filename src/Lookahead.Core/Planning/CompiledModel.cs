@@ -391,10 +391,17 @@ public sealed partial class CompiledModel
     /// not grow with the number of active limits); a warm-started plan, a plan whose first move cannot reach its window,
     /// and any interior-point result that is not a clean optimum go to the dual active-set method. Both reach the
     /// same optimum (the tests hold them to each other and to the CVXOPT fixtures).
+    /// <para>
+    /// A warm start pays only while consecutive states are alike. When a warm-started plan needs more than
+    /// <see cref="PlanWarmStart.CheapIterations"/> active-set changes, the sequence is taken to have jumped and its next
+    /// plans are planned cold, 1, 2, 4 … up to <see cref="PlanWarmStart.MaxColdRun"/> of them after each such plan in a
+    /// row; one cheap warm plan resets the count. Independent rows then cost a cold plan each instead of a long warm one.
+    /// </para>
     /// </summary>
     private ConstrainedOutcome SolveLimited(ConstrainedProblem constrained, Plan plan, PlanRequest request, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, PlanWarmStart? warmStart)
     {
-        if (warmStart is null && interiorPoint is not null && (request.PreviousInput is null || constrained.Rows.UnreachableFirstMoves(request.PreviousInput).Count == 0))
+        bool cold = warmStart is null || (interiorPoint is not null && warmStart.TakeColdTurn());
+        if (cold && interiorPoint is not null && (request.PreviousInput is null || constrained.Rows.UnreachableFirstMoves(request.PreviousInput).Count == 0))
         {
             var unconstrained = System.Buffers.ArrayPool<double>.Shared.Rent(plan.Inputs.Length);
             try
@@ -414,7 +421,13 @@ public sealed partial class CompiledModel
             }
         }
 
-        return constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
+        var result = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
+        if (warmStart is not null && interiorPoint is not null && !cold)
+        {
+            warmStart.Record(result.Iterations);
+        }
+
+        return result;
     }
 
     /// <summary>The warm start's own workspace for this variant, made on first use; null without a warm start.</summary>

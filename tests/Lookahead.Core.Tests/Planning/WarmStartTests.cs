@@ -69,6 +69,41 @@ public class WarmStartTests
         }
     }
 
+    // A single costly warm plan is a jump the next warm start follows; from the second costly plan in a row on, the
+    // sequence is planned cold for 1, 2, 4 … (at most 64) plans after each; one cheap warm plan resets the count.
+    [Fact]
+    public void CostlyWarmPlansInARowSwitchTheSequenceToColdPlansForGrowingRuns()
+    {
+        var warm = ColdStore().CreateWarmStart();
+        int costly = PlanWarmStart.CheapIterations + 1;
+        int ColdRun()
+        {
+            int run = 0;
+            while (warm.TakeColdTurn())
+            {
+                run++;
+            }
+
+            return run;
+        }
+
+        warm.Record(costly);
+        Assert.Equal(0, ColdRun());
+        var runs = new List<int>();
+        for (int i = 0; i < 9; i++)
+        {
+            warm.Record(costly);
+            runs.Add(ColdRun());
+        }
+
+        Assert.Equal([1, 2, 4, 8, 16, 32, 64, 64, 64], runs);
+        warm.Record(PlanWarmStart.CheapIterations);
+        warm.Record(costly);
+        Assert.Equal(0, ColdRun());
+        warm.Record(costly);
+        Assert.Equal(1, ColdRun());
+    }
+
     [Fact]
     public void AWarmStartBelongsToItsModel()
     {
