@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 
 namespace Lookahead.Core.Planning;
@@ -11,6 +12,7 @@ namespace Lookahead.Core.Planning;
 /// </summary>
 internal sealed unsafe partial class InteriorPointProblem
 {
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void RolloutTiled(InteriorPointWorkspace ws, in Request request)
     {
         tiles!.KeepAlive();
@@ -31,6 +33,7 @@ internal sealed unsafe partial class InteriorPointProblem
         }
     }
 
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void SoftOutputValuesTiled(double* x, double* y)
     {
         tiles!.KeepAlive();
@@ -55,6 +58,7 @@ internal sealed unsafe partial class InteriorPointProblem
     }
 
     /// <summary>Per u_k: R(u_k − u_s), and with a rate weight S(u_k − u_{k−1}) when that term exists and −S(u_{k+1} − u_k).</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void InputGradientTiled(InteriorPointWorkspace ws, double* targetInput, double* previous)
     {
         tiles!.KeepAlive();
@@ -90,6 +94,7 @@ internal sealed unsafe partial class InteriorPointProblem
     }
 
     /// <summary>Per x_k, 1 ≤ k &lt; N: CᵀQC x_k − CᵀQr; for x_N: P(x_N − x_s).</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void StateGradientTiled(InteriorPointWorkspace ws, double* targetState)
     {
         tiles!.KeepAlive();
@@ -111,6 +116,7 @@ internal sealed unsafe partial class InteriorPointProblem
         Tile.StorePartial(Tile.Combine(xN, tiles.Terminal, Vector256<double>.Zero), gx + (horizon * n), n);
     }
 
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void ReduceGradientTiled(InteriorPointWorkspace ws, double[] inputGradient, double[] stateGradient)
     {
         tiles!.KeepAlive();

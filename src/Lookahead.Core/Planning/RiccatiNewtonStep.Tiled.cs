@@ -106,6 +106,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// Yx = Pxx B + Pxv; X = R + D^u + BᵀYx + Pxvᵀ B + Pvv (exactly symmetric); L = BᵀMx + Mv; the rate block S + D^Δ;
     /// and the lower triangle of G_k = X + rate block into the tile <paramref name="factor"/>.
     /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void StageCurvature(InteriorPointWorkspace ws, double* t, int k, bool rateHere, double* factor)
     {
         double* pxv = t + (16 * TilePxv);
@@ -158,6 +159,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     }
 
     /// <summary>G⁻¹L, kept with its transpose for the solve; W −= LᵀG⁻¹L.</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private static void StageSlackGain(double* t, double* stage)
     {
         double* coupling = t + (16 * TileCoupling);
@@ -170,6 +172,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     }
 
     /// <summary>K = G⁻¹[F_x F_v]ᵀ with F_xᵀ = YxᵀA and F_v = −(S + D^Δ), kept with its transpose.</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void StageGain(double* t, double* stage)
     {
         double* fxT = t + (16 * TileFxT);
@@ -192,6 +195,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised (no cancellation when a rate barrier is huge);
     /// M^v = (S + D^Δ)G⁻¹L. The old Pxx and Mx are read before they are overwritten.
     /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void StageValue(double* t, double* stage, double* outputSum, double* outputDifference)
     {
         double* pxx = t + (16 * TilePxx);
@@ -199,7 +203,6 @@ internal sealed unsafe partial class RiccatiNewtonStep
         double* fxT = t + (16 * TileFxT);
         double* gainX = stage + StageGainX;
         double* slackGain = stage + StageSlackGainOffset;
-        double* rate = t + (16 * TileRate);
         double* work = t + (16 * TileWork);
         double* scratch = t + (16 * TileScratch);
         double* ta = tiles!.A;
@@ -218,15 +221,26 @@ internal sealed unsafe partial class RiccatiNewtonStep
 
         if (nv > 0)
         {
-            Tile.TransposeTimes(gainX, rate, null, t + (16 * TilePxv));
-            Tile.Copy(t + (16 * TileRest), work);
-            SolveTile(stage, work);
-            Tile.Times(rate, work, null, t + (16 * TilePvv));
-            Tile.Symmetrise(t + (16 * TilePvv));
-            if (ns > 0)
-            {
-                Tile.Times(rate, slackGain, null, t + (16 * TileMv));
-            }
+            StageRateValue(t, stage);
+        }
+    }
+
+    /// <summary>P^xv = K_xᵀ(S + D^Δ); P^vv = (S + D^Δ)G⁻¹X symmetrised; M^v = (S + D^Δ)G⁻¹L (see <see cref="StageValue"/>).</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private void StageRateValue(double* t, double* stage)
+    {
+        double* gainX = stage + StageGainX;
+        double* slackGain = stage + StageSlackGainOffset;
+        double* rate = t + (16 * TileRate);
+        double* work = t + (16 * TileWork);
+        Tile.TransposeTimes(gainX, rate, null, t + (16 * TilePxv));
+        Tile.Copy(t + (16 * TileRest), work);
+        SolveTile(stage, work);
+        Tile.Times(rate, work, null, t + (16 * TilePvv));
+        Tile.Symmetrise(t + (16 * TilePvv));
+        if (ns > 0)
+        {
+            Tile.Times(rate, slackGain, null, t + (16 * TileMv));
         }
     }
 
@@ -243,6 +257,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// which shortens the stage's dependency chain — and from it L⁻¹, D⁻¹L⁻¹ and (D⁻¹L⁻¹)ᵀ into the stage's tiles.
     /// </summary>
     /// <returns>False when a pivot is not positive and finite (G not numerically positive definite).</returns>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private bool FactorTile(double* g, double* stage)
     {
         double* l = stackalloc double[16];
@@ -330,6 +345,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// Backward: g = r_k + B̃ᵀp_{k+1}; kk = G⁻¹g (kept per stage); p^x_k = q_k + Aᵀp^x_{k+1} − K_xᵀg; p^v_k = (S + D^Δ)kk.
     /// Returns w = −Σ_k (G_k⁻¹L_k)ᵀg_k, the slacks' right-hand side.
     /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private Vector256<double> SolveTiledBackward(InteriorPointWorkspace ws)
     {
         tiles!.KeepAlive();
@@ -372,6 +388,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     }
 
     /// <summary>Forward: Δu_k = −(kk_k + (G⁻¹L)Δε + K_kΔz_k), Δx_{k+1} = AΔx_k + BΔu_k.</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
     private void SolveTiledForward(InteriorPointWorkspace ws, Vector256<double> stepSlack)
     {
         tiles!.KeepAlive();
