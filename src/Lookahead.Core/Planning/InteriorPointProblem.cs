@@ -56,14 +56,18 @@ internal sealed unsafe partial class InteriorPointProblem
     /// <summary>Multiplier updates per polish; each shrinks the active rows' residual by orders of magnitude.</summary>
     private const int PolishSweepCount = 3;
 
-    /// <summary>Guesses per polish: the first, and up to two corrections of rows it narrowly got wrong.</summary>
-    private const int PolishRounds = 3;
+    /// <summary>Guesses per polish: the first, and up to seven corrections (rows it crossed join, rows pulling the wrong way leave).</summary>
+    private const int PolishRounds = 8;
 
     /// <summary>A polish is abandoned after a sweep that leaves a row outside the guess violated by more than this × row scale.</summary>
     private const double PolishAbandon = 1e-6;
 
-    /// <summary>At most this many crossed rows widen a guess for another round instead of abandoning it.</summary>
-    private const int MaxWidenedRows = 3;
+    /// <summary>
+    /// At most this many crossed rows widen a guess for another round instead of abandoning it. Chosen by measurement on
+    /// the demo (limit, rounds): (3, 3) median 162 µs, p99 210–224 µs; (8, 5) 159 µs, 204–211 µs; (16, 8) 153 µs, 197 µs;
+    /// (64, 12) no better; without widening 12.78 iterations per plan and p99 242–306 µs.
+    /// </summary>
+    private const int MaxWidenedRows = 16;
 
     private enum PolishOutcome
     {
