@@ -447,6 +447,15 @@ internal sealed unsafe partial class InteriorPointProblem
             lam[i] += balanceL;
         }
 
+        // The slack bounds ε_j ≥ 0 start with the multiplier they have when no output row pulls: ½ρ_j, the
+        // objective's own gradient in ε. From the balanced start (multipliers of order 10²) the second iteration
+        // was blocked by them in every plan (its affine step 0.06–0.09), their multipliers being two orders short.
+        for (int t = 0; t < ns; t++)
+        {
+            int row = layout.Slack + t;
+            lam[row] = Math.Max(lam[row], 0.5 * request.LinearWeights[t]);
+        }
+
         double mu0 = count > 0 ? ComplementarityKernels.Residuals(sl, lam, value, 1, 1, 0).Gap / count : 0;
         double bestMu = double.PositiveInfinity;
         double bestComplementarity = double.PositiveInfinity;
