@@ -121,7 +121,7 @@ internal sealed unsafe partial class RiccatiNewtonStep
     /// <summary>The model's matrices as tiles when <see cref="IsTiled"/>, for the other per-stage loops of the solve.</summary>
     public ModelTiles? Tiles => tiles;
 
-    public RiccatiWorkspace CreateWorkspace() => new(n, m, nv, ns, horizon);
+    public RiccatiWorkspace CreateWorkspace() => new(n, m, nv, ns, horizon, tiled: tiles is not null);
 
     /// <summary>
     /// Backward recursion for the barrier weights in <paramref name="ws"/> (InputBarrier, RateBarrier, OutputBarrierSum,

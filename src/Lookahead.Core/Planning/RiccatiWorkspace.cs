@@ -7,7 +7,8 @@ namespace Lookahead.Core.Planning;
 /// </summary>
 internal sealed class RiccatiWorkspace
 {
-    public RiccatiWorkspace(int n, int m, int nv, int ns, int horizon)
+    /// <param name="tiled">Whether the small-model tiles are needed; without them their arrays stay empty.</param>
+    public RiccatiWorkspace(int n, int m, int nv, int ns, int horizon, bool tiled = false)
     {
         int np = Pad(n);
         int mp = Pad(m);
@@ -46,9 +47,9 @@ internal sealed class RiccatiWorkspace
         StepInput = Pinned(mp);
         PreviousStepInput = Pinned(mp);
         StepSlack = Pinned(Math.Max(sp, 4));
-        Tiles = Pinned(RiccatiNewtonStep.TileCount * 16);
-        TiledStages = Pinned(horizon * RiccatiNewtonStep.StageBlock);
-        TiledFeedforward = Pinned(horizon * 4);
+        Tiles = Pinned(tiled ? RiccatiNewtonStep.TileCount * 16 : 0);
+        TiledStages = Pinned(tiled ? horizon * RiccatiNewtonStep.StageBlock : 0);
+        TiledFeedforward = Pinned(tiled ? horizon * 4 : 0);
     }
 
     /// <summary>Row length rounded up to a multiple of 4 (one 256-bit vector of doubles).</summary>
