@@ -56,6 +56,9 @@ public sealed class QpWorkspace
     /// <summary>Size of the active set the last solve ended with (factored or found by the guesser).</summary>
     internal int LastActiveCount { get; set; }
 
+    /// <summary>The range-space iteration's per-row scratch (<see cref="RangeSpaceActiveSet"/>), made on first use.</summary>
+    internal RangeSpaceScratch? RangeSpaceScratch { get; set; }
+
     /// <summary>The guesser's scratch, made on its first use (<see cref="PrimalDualActiveSet"/>).</summary>
     internal ActiveSetGuessScratch? ActiveSetGuess { get; set; }
 

@@ -55,6 +55,13 @@ public static class CompiledSizeEstimate
                     perVariant += rows * (rows + decision);
                 }
 
+                // The range-space form's S and W (rows include the slacks' own bounds).
+                double allRows = rows + soft;
+                if (allRows <= int.MaxValue && withSlacks <= int.MaxValue && Optimization.RangeSpaceActiveSet.Fits((int)withSlacks, (int)allRows))
+                {
+                    perVariant += allRows * (allRows + withSlacks);
+                }
+
                 // Limit rows: an int and a double per nonzero (1.5 doubles); a soft output row at stage k has about k·m.
                 double nonzeros = (N * inputSides) + (2 * N * rateSides) + (outputSides * m * N * (N + 1) / 2);
                 perVariant += (1.5 * nonzeros) + (N * soft * n);

@@ -42,7 +42,7 @@ internal sealed class ConstrainedProblem
             ForcedViolation = new ForcedViolationBound(a, b, cs, soft.Select(j => limits.OutputMin[j]).ToArray(), soft.Select(j => limits.OutputMax[j]).ToArray(), model.Horizon, limits.InputMin, limits.InputMax, limits.InputRateMin, limits.InputRateMax);
         }
 
-        Solver = new DualActiveSetSolver(factor, Rows.Normals, 0, guessActiveSets: true);
+        Solver = new DualActiveSetSolver(factor, Rows.Normals, 0, guessActiveSets: true, rangeSpace: true);
     }
 
     public LimitRows Rows { get; }
@@ -56,8 +56,8 @@ internal sealed class ConstrainedProblem
 
     public int RowCount => Rows.Count;
 
-    /// <summary>Memory held: the solver's J₀ (a dense square over [U; ε]) and the rows.</summary>
-    public long Bytes => (sizeof(double) * ((long)Solver.Variables * Solver.Variables)) + Solver.GuessBytes + Rows.Bytes;
+    /// <summary>Memory held: the solver's J₀ (a dense square over [U; ε]), its range-space S and W, and the rows.</summary>
+    public long Bytes => (sizeof(double) * ((long)Solver.Variables * Solver.Variables)) + Solver.GuessBytes + Solver.RangeSpaceBytes + Rows.Bytes;
 
     /// <inheritdoc cref="LimitRows.OutputRowEntries"/>
     public static long OutputRowEntries(ValidatedModel model) => LimitRows.OutputRowEntries(model);

@@ -15,16 +15,19 @@ public class PublishedQpProblemTests
 {
     public static IEnumerable<object[]> Cases => Fixtures.CaseNames("qp_problems.json");
 
+    /// <summary>Every case in both forms of the dual active-set method (the range-space form only serves programs without equalities).</summary>
+    public static IEnumerable<object[]> CasesInBothForms => Cases.SelectMany(c => new[] { new object[] { c[0], false }, new object[] { c[0], true } });
+
     [Theory]
-    [MemberData(nameof(Cases))]
-    public void ReachesThePublishedOptimum(string name)
+    [MemberData(nameof(CasesInBothForms))]
+    public void ReachesThePublishedOptimum(string name, bool rangeSpace)
     {
         var c = Fixtures.Case("qp_problems.json", name);
         var g = c.GetProperty("g").Matrix();
         var a = c.GetProperty("a").Vector();
         var eq = c.GetProperty("eq");
         var ineq = c.GetProperty("ineq");
-        var solution = QuadraticProgram.Solve(g, a, eq.GetProperty("matrix").Matrix(), eq.GetProperty("rhs").Vector(), ineq.GetProperty("matrix").Matrix(), ineq.GetProperty("rhs").Vector());
+        var solution = QuadraticProgram.Solve(g, a, eq.GetProperty("matrix").Matrix(), eq.GetProperty("rhs").Vector(), ineq.GetProperty("matrix").Matrix(), ineq.GetProperty("rhs").Vector(), rangeSpace: rangeSpace);
         Assert.Equal(QpStatus.Optimal, solution.Status);
 
         double constant = c.GetProperty("constant").GetDouble();
@@ -45,10 +48,12 @@ public class PublishedQpProblemTests
     }
 
     // Goldfarb & Idnani's method must detect contradictory constraints rather than return a point.
-    [Fact]
-    public void ReportsInfeasibleConstraints()
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void ReportsInfeasibleConstraints(bool rangeSpace)
     {
-        var solution = QuadraticProgram.Solve([[1.0, 0.0], [0.0, 1.0]], [0.0, 0.0], [], [], [[1.0, 0.0], [-1.0, 0.0]], [1.0, 0.0]);
+        var solution = QuadraticProgram.Solve([[1.0, 0.0], [0.0, 1.0]], [0.0, 0.0], [], [], [[1.0, 0.0], [-1.0, 0.0]], [1.0, 0.0], rangeSpace: rangeSpace);
         Assert.Equal(QpStatus.Infeasible, solution.Status);
     }
 
@@ -59,10 +64,12 @@ public class PublishedQpProblemTests
         Assert.Equal(QpStatus.Infeasible, solution.Status);
     }
 
-    [Fact]
-    public void RespectsTheIterationCap()
+    [Theory]
+    [InlineData(false)]
+    [InlineData(true)]
+    public void RespectsTheIterationCap(bool rangeSpace)
     {
-        var solution = QuadraticProgram.Solve([[1.0, 0.0], [0.0, 1.0]], [0.0, 0.0], [], [], [[1.0, 0.0], [0.0, 1.0]], [1.0, 2.0], maxIterations: 1); // two constraints to add, one allowed
+        var solution = QuadraticProgram.Solve([[1.0, 0.0], [0.0, 1.0]], [0.0, 0.0], [], [], [[1.0, 0.0], [0.0, 1.0]], [1.0, 2.0], maxIterations: 1, rangeSpace: rangeSpace); // two constraints to add, one allowed
         Assert.Equal(QpStatus.IterationLimit, solution.Status);
     }
 }

@@ -39,7 +39,8 @@ public static class QuadraticProgram
     /// <summary>The proximal iterates have converged when no entry moves more than this relative to max(1, ‖x‖∞).</summary>
     private const double ConvergedMove = 1e-13;
 
-    public static QuadraticProgramSolution Solve(double[][] g, double[] a, double[][] equalities, double[] equalityRhs, double[][] inequalities, double[] inequalityRhs, int? maxIterations = null)
+    /// <param name="rangeSpace">Solve in the range-space form (<see cref="RangeSpaceActiveSet"/>) where the program allows it (no equalities).</param>
+    public static QuadraticProgramSolution Solve(double[][] g, double[] a, double[][] equalities, double[] equalityRhs, double[][] inequalities, double[] inequalityRhs, int? maxIterations = null, bool rangeSpace = false)
     {
         int n = a.Length;
         var gm = Matrix<double>.Build.DenseOfRowArrays(g);
@@ -59,14 +60,14 @@ public static class QuadraticProgram
         bool definite = eigenvalues.Min() > DefinitenessRatio * largest;
         if (definite)
         {
-            var solver = new DualActiveSetSolver(new CholeskyFactor(gm), sparse, equalities.Length);
+            var solver = new DualActiveSetSolver(new CholeskyFactor(gm), sparse, equalities.Length, rangeSpace: rangeSpace);
             var x = new double[n];
             var result = solver.Solve(a, rhs, x, unconstrained: false, cap, solver.CreateWorkspace());
             return new QuadraticProgramSolution(result.Status, x, Objective(gm, a, x), result.Iterations, 1);
         }
 
         double mu = ProximalWeight * Math.Max(1.0, largest);
-        var regularised = new DualActiveSetSolver(new CholeskyFactor(gm + (mu * Matrix<double>.Build.DenseIdentity(n))), sparse, equalities.Length);
+        var regularised = new DualActiveSetSolver(new CholeskyFactor(gm + (mu * Matrix<double>.Build.DenseIdentity(n))), sparse, equalities.Length, rangeSpace: rangeSpace);
         var workspace = regularised.CreateWorkspace();
         var current = new double[n];
         var next = new double[n];

@@ -1,0 +1,872 @@
+using System.Runtime.Intrinsics;
+using System.Runtime.Intrinsics.X86;
+
+namespace Lookahead.Core.Optimization;
+
+/// <summary>
+/// The dual active-set method of <see cref="DualActiveSetSolver"/> (Goldfarb–Idnani) in range-space form, for
+/// inequality-only programs with few enough rows that S = NG⁻¹Nᵀ (rows × rows) and W = G⁻¹Nᵀ can be kept from
+/// registration. The point is x = x₀ + W_A u_A (+ the candidate's column), so it is never updated while the method
+/// runs: the active set is held as the Cholesky factor L of S_AA and its inverse M = L⁻¹ (q × q each), the dual
+/// direction r = S_AA⁻¹S_Ap = Mᵀ(M S_Ap) takes two triangular products with independent rows, and a row's slack is
+/// its slack at x₀ plus S_cA u_A. A step then costs O(q²) instead of the O(n(n − q)) of J = L⁻ᵀQ.
+/// <para>
+/// The row to add is taken from a short list of the rows most violated at the last full pass over all rows, re-valued
+/// exactly through S; only when none of them is still violated is x formed and every row passed again. That pass is
+/// what the most-violated rule would pay on every addition; any violated row keeps the method finite and its
+/// optimum the same (the program is strictly convex), only the path can differ.
+/// </para>
+/// Adding a row borders L by one row and M by −rᵀ/d (d the new diagonal); dropping one removes its row and column
+/// from L and restores the trailing block by rotations, which applied to M's rows keep M = L⁻¹: O(q²) either way.
+/// <para>
+/// Measured against the J form on the same plans (docs/performance.md): M1 with input and rate limits 35–36 µs
+/// against 168–184 µs; the demo's limited plans on this path 82 µs against 805 µs. The iterates agree to rounding.
+/// </para>
+/// </summary>
+internal sealed unsafe class RangeSpaceActiveSet
+{
+    /// <summary>
+    /// A candidate whose part outside the active rows' span, n_pᵀz = S_pp − ‖M S_Ap‖², is at most this × S_pp is
+    /// taken as dependent on them (a dual step only). The value comes from a subtraction, so its rounding is of order
+    /// 10⁻¹⁶·S_pp times the growth of M; 10⁻¹¹ leaves a margin of 10⁵ over that.
+    /// </summary>
+    public const double DependentTolerance = 1e-11;
+
+    /// <summary>Largest S plus W kept per program: 2²¹ doubles, 16 MiB.</summary>
+    public const long MaxEntries = 1L << 21;
+
+    /// <summary>
+    /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on M1 with rate limits
+    /// (mean µs per plan, iterations): 1 (the most-violated rule) 117, 54; 4: 95, 68; 8: 80, 71; 16: 93, 70; 32: 94, 68.
+    /// </summary>
+    public const int CandidateListLength = 8;
+
+    /// <summary>Work allowed to form W and S at registration, in multiply–adds (n·p·(n + p)): about a second.</summary>
+    public const long MaxSetUpWork = 1L << 30;
+
+    private readonly SparseRows rows;
+    private readonly int n;
+    private readonly int p;
+
+    /// <summary>W = G⁻¹Nᵀ, row j = G⁻¹n_j.</summary>
+    private readonly double[] directions;
+
+    /// <summary>S = NG⁻¹Nᵀ, row-major.</summary>
+    private readonly double[] curvature;
+
+    /// <summary>1/‖n_j‖: violations are compared as distances.</summary>
+    private readonly double[] inverseNorms;
+
+    /// <summary>
+    /// The rows in the order a full pass reads them: first those with one or two entries (bounds and rate rows), then
+    /// the rest (output rows); <see cref="position"/> is the inverse.
+    /// </summary>
+    private readonly int[] order;
+    private readonly int[] position;
+
+    /// <summary>Rows at the head of <see cref="order"/> with one or two entries.</summary>
+    private readonly int pairCount;
+
+    /// <summary>
+    /// Those rows as two column–value pairs scaled by 1/‖n_j‖ (a single entry's second value is 0), by position, so a
+    /// full pass reads four of them at a time by gathers.
+    /// </summary>
+    private readonly int[] firstColumns;
+    private readonly int[] secondColumns;
+    private readonly double[] firstValues;
+    private readonly double[] secondValues;
+
+    /// <summary>
+    /// Per row, how many of its leading entries sit in consecutive columns: an output row's entries cover the inputs
+    /// up to its stage, so that run is read as a contiguous dot product and only the rest is gathered.
+    /// </summary>
+    private readonly int[] runLengths;
+
+    public RangeSpaceActiveSet(Numerics.CholeskyFactor factor, SparseRows rows)
+    {
+        this.rows = rows;
+        n = factor.Size;
+        p = rows.RowCount;
+        directions = new double[(long)p * n];
+        curvature = new double[(long)p * p];
+        inverseNorms = new double[p];
+        var column = new double[n];
+        for (int j = 0; j < p; j++)
+        {
+            Array.Clear(column);
+            var cols = rows.ColumnsOf(j);
+            var vals = rows.ValuesOf(j);
+            for (int k = 0; k < cols.Length; k++)
+            {
+                column[cols[k]] = vals[k];
+            }
+
+            factor.Solve(column);
+            column.CopyTo(directions.AsSpan(j * n, n));
+            inverseNorms[j] = 1 / Math.Max(rows.Norm(j), double.Epsilon);
+        }
+
+        for (int i = 0; i < p; i++)
+        {
+            for (int j = 0; j <= i; j++)
+            {
+                double value = rows.Dot(i, directions.AsSpan(j * n, n));
+                curvature[((long)i * p) + j] = value;
+                curvature[((long)j * p) + i] = value;
+            }
+        }
+
+        order = new int[p];
+        position = new int[p];
+        int next = 0;
+        for (int pass = 0; pass < 2; pass++)
+        {
+            for (int j = 0; j < p; j++)
+            {
+                if ((rows.ColumnsOf(j).Length is 1 or 2) == (pass == 0))
+                {
+                    position[j] = next;
+                    order[next++] = j;
+                }
+            }
+
+            if (pass == 0)
+            {
+                pairCount = next;
+            }
+        }
+
+        runLengths = new int[p];
+        for (int j = 0; j < p; j++)
+        {
+            var cols = rows.ColumnsOf(j);
+            int run = cols.Length > 0 ? 1 : 0;
+            while (run < cols.Length && cols[run] == cols[0] + run)
+            {
+                run++;
+            }
+
+            runLengths[j] = run;
+        }
+
+        firstColumns = new int[pairCount];
+        secondColumns = new int[pairCount];
+        firstValues = new double[pairCount];
+        secondValues = new double[pairCount];
+        for (int k = 0; k < pairCount; k++)
+        {
+            int j = order[k];
+            var cols = rows.ColumnsOf(j);
+            var vals = rows.ValuesOf(j);
+            firstColumns[k] = cols[0];
+            firstValues[k] = vals[0] * inverseNorms[j];
+            secondColumns[k] = cols[^1];
+            secondValues[k] = cols.Length == 2 ? vals[1] * inverseNorms[j] : 0;
+        }
+    }
+
+    /// <summary>Whether a program of this size may keep S and W, and form them at registration within <see cref="MaxSetUpWork"/>.</summary>
+    public static bool Fits(int variables, int rowCount)
+    {
+        long entries = ((long)rowCount * rowCount) + ((long)rowCount * variables);
+        return entries <= MaxEntries && entries * variables <= MaxSetUpWork;
+    }
+
+    public long Bytes => sizeof(double) * (directions.LongLength + curvature.LongLength);
+
+    /// <summary>
+    /// As <see cref="DualActiveSetSolver.Solve"/> for an inequality-only program, from the unconstrained minimiser in
+    /// <paramref name="x"/>. With <paramref name="warm"/>, starts from the workspace's last active set: S_AA is factored
+    /// afresh, and rows switched off, dependent or with negative multipliers are dropped until the start is dual feasible.
+    /// </summary>
+    public QpResult Solve(ReadOnlySpan<double> rhs, Span<double> x, int maxIterations, QpWorkspace workspace, bool warm)
+    {
+        var s = new State(this, workspace, rhs, x);
+        int iterations = 0;
+        if (warm && workspace.LastActiveCount > 0)
+        {
+            iterations = s.Resume(workspace.LastActiveCount);
+        }
+
+        int candidate = -1;
+        while (true)
+        {
+            if (candidate < 0)
+            {
+                // Forms x whenever it passes every row, so an optimum leaves with its point.
+                candidate = s.NextCandidate();
+                if (candidate < 0)
+                {
+                    s.Refine();
+                    return new QpResult(QpStatus.Optimal, iterations, s.Count, -1);
+                }
+
+                s.U[s.Count] = 0;
+            }
+
+            if (iterations >= maxIterations)
+            {
+                s.FormPoint(candidate);
+                return new QpResult(QpStatus.IterationLimit, iterations, s.Count, -1);
+            }
+
+            bool primalStep = s.Directions(candidate, out double curvatureLeft);
+            int q = s.Count;
+            var u = s.U;
+            var step = s.R;
+
+            double partial = double.PositiveInfinity;
+            int blocking = -1;
+            for (int i = 0; i < q; i++)
+            {
+                if (step[i] > 0)
+                {
+                    double ratio = u[i] / step[i];
+                    if (ratio < partial)
+                    {
+                        partial = ratio;
+                        blocking = i;
+                    }
+                }
+            }
+
+            double full = primalStep ? -s.Slack(candidate, candidate) / curvatureLeft : double.PositiveInfinity;
+            double t = Math.Min(partial, full);
+            if (double.IsPositiveInfinity(t))
+            {
+                s.FormPoint(candidate);
+                return new QpResult(QpStatus.Infeasible, iterations, q, candidate);
+            }
+
+            for (int i = 0; i < q; i++)
+            {
+                u[i] -= t * step[i];
+            }
+
+            u[q] += t;
+            iterations++;
+            if (primalStep && full <= partial)
+            {
+                s.Add(candidate, curvatureLeft);
+                candidate = -1;
+            }
+            else
+            {
+                double candidateMultiplier = u[q];
+                s.Drop(blocking);
+                s.U[s.Count] = candidateMultiplier;
+            }
+        }
+    }
+
+    /// <summary>One solve's working state, over the workspace's arrays.</summary>
+    private ref struct State
+    {
+        private readonly RangeSpaceActiveSet set;
+        private readonly ReadOnlySpan<double> rhs;
+        private readonly Span<double> x;
+        private readonly Span<double> start;
+        private readonly Span<double> l;
+        private readonly Span<double> m;
+        private readonly Span<double> y;
+        private readonly Span<double> spareRow;
+        private readonly Span<int> active;
+        private readonly Span<bool> isActive;
+        private readonly Span<double> limits;
+        private readonly Span<double> scaledRhs;
+
+        /// <summary>n_cᵀx₀ − b_c per row: slacks at the unconstrained minimiser.</summary>
+        private readonly Span<double> baseSlack;
+        private readonly Span<int> candidates;
+        private readonly int n;
+        private readonly int p;
+        private int candidateCount;
+
+        public State(RangeSpaceActiveSet set, QpWorkspace workspace, ReadOnlySpan<double> rhs, Span<double> x)
+        {
+            this.set = set;
+            this.rhs = rhs;
+            this.x = x;
+            n = set.n;
+            p = set.p;
+            start = workspace.Start;
+            x.CopyTo(start);
+            l = workspace.R;
+            m = workspace.J;
+            y = workspace.D;
+            spareRow = workspace.Z;
+            R = workspace.Step;
+            U = workspace.Multipliers;
+            active = workspace.Active;
+            isActive = workspace.IsActive;
+            isActive.Clear();
+            var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(p, CandidateListLength);
+            limits = scratch.Limits;
+            scaledRhs = scratch.ScaledRhs;
+            candidates = scratch.Candidates;
+            candidateCount = 0;
+            Count = 0;
+            baseSlack = scratch.BaseSlack;
+            fixed (double* x0 = start)
+            {
+                for (int c = 0; c < p; c++)
+                {
+                    int k = set.position[c];
+                    limits[k] = Limit(c);
+                    scaledRhs[k] = rhs[c] * set.inverseNorms[c];
+                    baseSlack[c] = set.RowDot(c, x0) - rhs[c];
+                }
+            }
+        }
+
+        /// <summary>Active rows.</summary>
+        public int Count { get; private set; }
+
+        /// <summary>Multipliers of the active rows, then the candidate's.</summary>
+        public Span<double> U { get; }
+
+        /// <summary>The dual direction r = S_AA⁻¹S_Ap of the last <see cref="Directions"/>.</summary>
+        public Span<double> R { get; }
+
+        /// <summary>
+        /// y = M S_Ap and r = Mᵀy for candidate p; false when p is dependent on the active rows. curvatureLeft is
+        /// n_pᵀz = S_pp − ‖y‖², the slack's rate of change along the primal direction z = W_p − W_A r.
+        /// </summary>
+        public bool Directions(int candidate, out double curvatureLeft)
+        {
+            int q = Count;
+            var sRow = set.curvature.AsSpan(candidate * p, p);
+            fixed (double* mp = m, yp = y, rp = R, sp = sRow)
+            fixed (int* ap = active)
+            {
+                double* gathered = rp;
+                Gather(sp, ap, gathered, q);
+
+                double norm2 = 0;
+                for (int i = 0; i < q; i++)
+                {
+                    double value = Dot(mp + (i * n), gathered, i + 1);
+                    yp[i] = value;
+                    norm2 += value * value;
+                }
+
+                // r = Mᵀy: r_k = Σ_{i≥k} M_ik y_i, four entries of r at a time: whole rows of M below the block, then
+                // the triangle inside it (entries of M right of the diagonal are not kept, so never read).
+                int j = 0;
+                for (; j + 4 <= q; j += 4)
+                {
+                    var acc = Vector256<double>.Zero;
+                    for (int i = j + 4; i < q; i++)
+                    {
+                        acc = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i]), Vector256.Load(mp + (i * n) + j), acc);
+                    }
+
+                    Vector256.Store(acc, rp + j);
+                    for (int i = j; i < j + 4; i++)
+                    {
+                        for (int k = j; k <= i; k++)
+                        {
+                            rp[k] += mp[(i * n) + k] * yp[i];
+                        }
+                    }
+                }
+
+                for (int k = j; k < q; k++)
+                {
+                    double sum = 0;
+                    for (int i = k; i < q; i++)
+                    {
+                        sum += mp[(i * n) + k] * yp[i];
+                    }
+
+                    rp[k] = sum;
+                }
+
+                double spp = sp[candidate];
+                curvatureLeft = spp - norm2;
+
+                // With q = n the active rows span every direction (the factor has no room for another row).
+                return q < n && curvatureLeft > DependentTolerance * spp;
+            }
+        }
+
+        /// <summary>n_cᵀx − b_c at the present point x₀ + W_A u_A (+ u_q W_p for a pending candidate p ≥ 0).</summary>
+        public readonly double Slack(int c, int candidate)
+        {
+            var sRow = set.curvature.AsSpan(c * p, p);
+            double sum = baseSlack[c] + (candidate >= 0 ? sRow[candidate] * U[Count] : 0);
+            fixed (double* sp = sRow, up = U)
+            fixed (int* ap = active)
+            {
+                return sum + GatherDot(sp, ap, up, Count);
+            }
+        }
+
+        /// <summary>Borders L by [y, √(n_pᵀz)] and M by [−rᵀ/d, 1/d].</summary>
+        public void Add(int candidate, double curvatureLeft)
+        {
+            int q = Count;
+            double d = Math.Sqrt(curvatureLeft);
+            double inverse = 1 / d;
+            var lRow = l.Slice(q * n, q + 1);
+            var mRow = m.Slice(q * n, q + 1);
+            y[..q].CopyTo(lRow);
+            for (int i = 0; i < q; i++)
+            {
+                mRow[i] = -R[i] * inverse;
+            }
+
+            lRow[q] = d;
+            mRow[q] = inverse;
+            active[q] = candidate;
+            isActive[candidate] = true;
+            limits[set.position[candidate]] = double.NegativeInfinity;
+            Count = q + 1;
+        }
+
+        /// <summary>
+        /// Removes active row k: the rows below it move up without their entry in column k, the trailing block of L
+        /// absorbs that column (L̃L̃ᵀ = L₂₂L₂₂ᵀ + vvᵀ) by a rank-one update, and M's rows from k on are formed again.
+        /// </summary>
+        public void Drop(int k)
+        {
+            int q = Count;
+            isActive[active[k]] = false;
+            limits[set.position[active[k]]] = Limit(active[k]);
+            var v = y;
+
+            // M's row k is set aside; the rows below move up whole (still in the old columns, 0 … i + 1 in slot i).
+            var spare = spareRow[..q];
+            spare.Clear();
+            m.Slice(k * n, k + 1).CopyTo(spare);
+            for (int i = k + 1; i < q; i++)
+            {
+                v[i - k - 1] = l[(i * n) + k];
+                var from = l.Slice(i * n, i + 1);
+                var to = l.Slice((i - 1) * n, i);
+                from[..k].CopyTo(to);
+                from[(k + 1)..].CopyTo(to[k..]);
+                m.Slice(i * n, i + 1).CopyTo(m.Slice((i - 1) * n, i + 1));
+                active[i - 1] = active[i];
+                U[i - 1] = U[i];
+            }
+
+            q--;
+            Count = q;
+
+            // L's trailing block absorbs v by rotations of (column j, v); the same rotations, applied to the rows of M
+            // and the set-aside row, keep M = L⁻¹ (with [L̃ 0] = L'Q, M̃ is the first rows of QᵀM without column k).
+            for (int j = k; j < q; j++)
+            {
+                double diagonal = l[(j * n) + j];
+                double vj = v[j - k];
+                double radius = Math.Sqrt((diagonal * diagonal) + (vj * vj));
+                double c = diagonal / radius;
+                double s = vj / radius;
+                l[(j * n) + j] = radius;
+                for (int i = j + 1; i < q; i++)
+                {
+                    double lij = l[(i * n) + j];
+                    l[(i * n) + j] = (c * lij) + (s * v[i - k]);
+                    v[i - k] = (c * v[i - k]) - (s * lij);
+                }
+
+                Rotate(m.Slice(j * n, j + 2), spare[..(j + 2)], c, s);
+            }
+
+            for (int j = k; j < q; j++)
+            {
+                var row = m.Slice(j * n, j + 2);
+                row[(k + 1)..].CopyTo(row[k..]);
+            }
+        }
+
+        /// <summary>[a; b] ← [c·a + s·b; −s·a + c·b], four entries at a time.</summary>
+        private static void Rotate(Span<double> a, Span<double> b, double c, double s)
+        {
+            fixed (double* ap = a, bp = b)
+            {
+                int i = 0;
+                var cv = Vector256.Create(c);
+                var sv = Vector256.Create(s);
+                for (; i + 4 <= a.Length; i += 4)
+                {
+                    var av = Vector256.Load(ap + i);
+                    var bv = Vector256.Load(bp + i);
+                    Vector256.Store((cv * av) + (sv * bv), ap + i);
+                    Vector256.Store((cv * bv) - (sv * av), bp + i);
+                }
+
+                for (; i < a.Length; i++)
+                {
+                    double av = ap[i];
+                    ap[i] = (c * av) + (s * bp[i]);
+                    bp[i] = (c * bp[i]) - (s * av);
+                }
+            }
+        }
+
+        /// <summary>
+        /// One step of iterative refinement at the optimum: the active rows' residuals at the formed x, measured on
+        /// the rows themselves, are taken out along W_A (Δu = −S_AA⁻¹(N_Ax − b_A)). x = x₀ + W_Au sums terms far larger
+        /// than x when the multipliers are huge (soft limits at a raised weight: x₀'s slacks at −ρ/w), and the sum's
+        /// rounding would otherwise stay in the plan; the correction is small, so its own rounding is too.
+        /// </summary>
+        public void Refine()
+        {
+            int q = Count;
+            if (q == 0)
+            {
+                return;
+            }
+
+            fixed (double* xp = x)
+            {
+                for (int i = 0; i < q; i++)
+                {
+                    y[i] = rhs[active[i]] - set.RowDot(active[i], xp);
+                }
+            }
+
+            // Δu = MᵀM(b_A − N_Ax), into R.
+            for (int i = 0; i < q; i++)
+            {
+                double sum = 0;
+                for (int k = 0; k <= i; k++)
+                {
+                    sum += m[(i * n) + k] * y[k];
+                }
+
+                spareRow[i] = sum;
+            }
+
+            for (int k = 0; k < q; k++)
+            {
+                double sum = 0;
+                for (int i = k; i < q; i++)
+                {
+                    sum += m[(i * n) + k] * spareRow[i];
+                }
+
+                R[k] = sum;
+            }
+
+            for (int i = 0; i < q; i++)
+            {
+                U[i] = Math.Max(U[i] + R[i], 0);
+                Numerics.DenseKernels.Axpy(R[i], set.directions.AsSpan(active[i] * n, n), x);
+            }
+        }
+
+        /// <summary>
+        /// Warm start from the first <paramref name="kept"/> rows of the active list: rows switched off or dependent on
+        /// earlier ones are left out as L and M are bordered again; then u = S_AA⁻¹(b_A − N_Ax₀), dropping the most
+        /// negative multiplier until none is left. Returns the rows left out (they count as iterations).
+        /// </summary>
+        public int Resume(int kept)
+        {
+            int drops = 0;
+            for (int i = 0; i < kept; i++)
+            {
+                int j = active[i];
+                if (double.IsNegativeInfinity(rhs[j]) || !Directions(j, out double left))
+                {
+                    drops++;
+                    continue;
+                }
+
+                Add(j, left);
+            }
+
+            while (true)
+            {
+                int q = Count;
+                for (int i = 0; i < q; i++)
+                {
+                    y[i] = -baseSlack[active[i]];
+                }
+
+                // u = MᵀM(b_A − N_Ax₀).
+                for (int i = 0; i < q; i++)
+                {
+                    double sum = 0;
+                    for (int k = 0; k <= i; k++)
+                    {
+                        sum += m[(i * n) + k] * y[k];
+                    }
+
+                    R[i] = sum;
+                }
+
+                int drop = -1;
+                double worst = -1e-14;
+                for (int k = 0; k < q; k++)
+                {
+                    double sum = 0;
+                    for (int i = k; i < q; i++)
+                    {
+                        sum += m[(i * n) + k] * R[i];
+                    }
+
+                    U[k] = sum;
+                    if (sum < worst)
+                    {
+                        worst = sum;
+                        drop = k;
+                    }
+                }
+
+                if (drop < 0)
+                {
+                    for (int k = 0; k < q; k++)
+                    {
+                        U[k] = Math.Max(U[k], 0);
+                    }
+
+                    return drops;
+                }
+
+                Drop(drop);
+                drops++;
+            }
+        }
+
+        /// <summary>
+        /// The next row to add: the most violated of the kept list, each re-valued through S; when none is, a full pass
+        /// at the formed point refills the list. −1 when no row is violated.
+        /// </summary>
+        public int NextCandidate()
+        {
+            int best = -1;
+            double bestScaled = 0;
+            for (int i = 0; i < candidateCount; i++)
+            {
+                int c = candidates[i];
+                if (isActive[c])
+                {
+                    continue;
+                }
+
+                double slack = Slack(c, -1);
+                if (slack * set.inverseNorms[c] < bestScaled && slack < -DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
+                {
+                    bestScaled = slack * set.inverseNorms[c];
+                    best = c;
+                }
+            }
+
+            if (best >= 0)
+            {
+                return best;
+            }
+
+            FormPoint(-1);
+            return FullPass();
+        }
+
+        /// <summary>x = x₀ + W_A u_A (+ u_q W_p while a candidate is pending), q + 1 directions summed per register.</summary>
+        public void FormPoint(int candidate)
+        {
+            int q = Count;
+            fixed (double* xp = x, x0 = start, w = set.directions, up = U)
+            fixed (int* ap = active)
+            {
+                int terms = candidate >= 0 ? q + 1 : q;
+                int c = 0;
+                for (; c + 8 <= n; c += 8)
+                {
+                    var acc0 = Vector256.Load(x0 + c);
+                    var acc1 = Vector256.Load(x0 + c + 4);
+                    for (int i = 0; i < terms; i++)
+                    {
+                        var coefficient = Vector256.Create(up[i]);
+                        double* wi = w + ((long)(i < q ? ap[i] : candidate) * n) + c;
+                        acc0 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi), acc0);
+                        acc1 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi + 4), acc1);
+                    }
+
+                    Vector256.Store(acc0, xp + c);
+                    Vector256.Store(acc1, xp + c + 4);
+                }
+
+                for (; c < n; c++)
+                {
+                    double sum = x0[c];
+                    for (int i = 0; i < terms; i++)
+                    {
+                        sum += up[i] * w[((long)(i < q ? ap[i] : candidate) * n) + c];
+                    }
+
+                    xp[c] = sum;
+                }
+            }
+        }
+
+        /// <summary>
+        /// Every row at the formed point: keeps the <see cref="CandidateListLength"/> most violated (by distance) and
+        /// returns the worst, or −1. Active rows and rows switched off have limit −∞ and never count.
+        /// </summary>
+        private int FullPass()
+        {
+            int length = candidates.Length;
+            double* kept = stackalloc double[length];
+            int count = 0;
+            double entry = double.PositiveInfinity;
+            int pairs = set.pairCount;
+            fixed (double* xp = x, lim = limits, scaled = scaledRhs, inverseNorm = set.inverseNorms, v0 = set.firstValues, v1 = set.secondValues)
+            fixed (int* c0 = set.firstColumns, c1 = set.secondColumns, list = candidates, order = set.order)
+            {
+                int k = 0;
+                if (Avx2.IsSupported && Fma.IsSupported)
+                {
+                    // Four rows at a time; the (rare) rows that are violated and enter the list are taken one by one.
+                    for (; k + 4 <= pairs; k += 4)
+                    {
+                        var first = Avx2.GatherVector256(xp, Vector128.Load(c0 + k), 8);
+                        var second = Avx2.GatherVector256(xp, Vector128.Load(c1 + k), 8);
+                        var value = Fma.MultiplyAdd(Vector256.Load(v0 + k), first, Vector256.Load(v1 + k) * second);
+                        var violation = value - Vector256.Load(scaled + k);
+                        var enters = Vector256.LessThan(value, Vector256.Load(lim + k)) & Vector256.LessThan(violation, Vector256.Create(entry));
+                        uint lanes = enters.ExtractMostSignificantBits();
+                        while (lanes != 0)
+                        {
+                            int lane = System.Numerics.BitOperations.TrailingZeroCount(lanes);
+                            lanes &= lanes - 1;
+                            double v = violation.GetElement(lane);
+                            if (v < entry)
+                            {
+                                Keep(kept, list, length, ref count, ref entry, order[k + lane], v);
+                            }
+                        }
+                    }
+                }
+
+                for (; k < pairs; k++)
+                {
+                    double value = (v0[k] * xp[c0[k]]) + (v1[k] * xp[c1[k]]);
+                    if (value < lim[k] && value - scaled[k] < entry)
+                    {
+                        Keep(kept, list, length, ref count, ref entry, order[k], value - scaled[k]);
+                    }
+                }
+
+                for (; k < p; k++)
+                {
+                    int c = order[k];
+                    double value = set.RowDot(c, xp) * inverseNorm[c];
+                    if (value < lim[k] && value - scaled[k] < entry)
+                    {
+                        Keep(kept, list, length, ref count, ref entry, c, value - scaled[k]);
+                    }
+                }
+            }
+
+            candidateCount = count;
+            return count > 0 ? candidates[0] : -1;
+        }
+
+        /// <summary>Inserts row c into the list (most violated first), dropping the last when full; entry is the bar to join.</summary>
+        private static void Keep(double* kept, int* list, int length, ref int count, ref double entry, int c, double violation)
+        {
+            int at = Math.Min(count, length - 1);
+            while (at > 0 && kept[at - 1] > violation)
+            {
+                kept[at] = kept[at - 1];
+                list[at] = list[at - 1];
+                at--;
+            }
+
+            kept[at] = violation;
+            list[at] = c;
+            count = Math.Min(count + 1, length);
+            entry = count == length ? kept[length - 1] : double.PositiveInfinity;
+        }
+
+        /// <summary>The scaled value below which row c counts as violated: (b_c − tol·(1 + |b_c|))/‖n_c‖, or −∞ when off.</summary>
+        private readonly double Limit(int c) =>
+            double.IsNegativeInfinity(rhs[c]) ? double.NegativeInfinity : (rhs[c] - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))) * set.inverseNorms[c];
+    }
+
+    /// <summary>n_jᵀx: the leading run of consecutive columns as a dense dot product, the rest gathered.</summary>
+    private double RowDot(int row, double* x)
+    {
+        var columns = rows.ColumnsOf(row);
+        var values = rows.ValuesOf(row);
+        int run = runLengths[row];
+        fixed (int* cp = columns)
+        fixed (double* vp = values)
+        {
+            double sum = run > 0 ? Dot(vp, x + cp[0], run) : 0;
+            return sum + GatherDot(x, cp + run, vp + run, columns.Length - run);
+        }
+    }
+
+    /// <summary>Σ_i row[index_i]·weight_i, four gathered entries at a time.</summary>
+    private static double GatherDot(double* row, int* index, double* weight, int count)
+    {
+        int i = 0;
+        double sum = 0;
+        if (Avx2.IsSupported && Fma.IsSupported)
+        {
+            var acc = Vector256<double>.Zero;
+            for (; i + 4 <= count; i += 4)
+            {
+                acc = Fma.MultiplyAdd(Avx2.GatherVector256(row, Vector128.Load(index + i), 8), Vector256.Load(weight + i), acc);
+            }
+
+            sum = Vector256.Sum(acc);
+        }
+
+        for (; i < count; i++)
+        {
+            sum += row[index[i]] * weight[i];
+        }
+
+        return sum;
+    }
+
+    /// <summary>target_i = row[index_i], four at a time.</summary>
+    private static void Gather(double* row, int* index, double* target, int count)
+    {
+        int i = 0;
+        if (Avx2.IsSupported)
+        {
+            for (; i + 4 <= count; i += 4)
+            {
+                Vector256.Store(Avx2.GatherVector256(row, Vector128.Load(index + i), 8), target + i);
+            }
+        }
+
+        for (; i < count; i++)
+        {
+            target[i] = row[index[i]];
+        }
+    }
+
+    /// <summary>Σ_{k&lt;length} a_k b_k with two vector accumulators.</summary>
+    private static double Dot(double* a, double* b, int length)
+    {
+        var acc0 = Vector256<double>.Zero;
+        var acc1 = Vector256<double>.Zero;
+        int k = 0;
+        for (; k + 8 <= length; k += 8)
+        {
+            acc0 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k), Vector256.Load(b + k), acc0);
+            acc1 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k + 4), Vector256.Load(b + k + 4), acc1);
+        }
+
+        if (k + 4 <= length)
+        {
+            acc0 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k), Vector256.Load(b + k), acc0);
+            k += 4;
+        }
+
+        double sum = Vector256.Sum(acc0 + acc1);
+        for (; k < length; k++)
+        {
+            sum += a[k] * b[k];
+        }
+
+        return sum;
+    }
+}

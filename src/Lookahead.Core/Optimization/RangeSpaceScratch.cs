@@ -1,0 +1,17 @@
+namespace Lookahead.Core.Optimization;
+
+/// <summary>Per-row arrays of one <see cref="RangeSpaceActiveSet"/> solve, kept with its workspace.</summary>
+internal sealed class RangeSpaceScratch(int rows, int candidates)
+{
+    /// <summary>Per row (in the order a full pass reads them), the scaled value below which it counts as violated; −∞ while active or switched off.</summary>
+    public double[] Limits { get; } = new double[rows];
+
+    /// <summary>Per row, n_jᵀx₀ − b_j at the unconstrained minimiser.</summary>
+    public double[] BaseSlack { get; } = new double[rows];
+
+    /// <summary>Per row (in the order a full pass reads them), b_j/‖n_j‖.</summary>
+    public double[] ScaledRhs { get; } = new double[rows];
+
+    /// <summary>The rows most violated at the last full pass, most violated first.</summary>
+    public int[] Candidates { get; } = new int[candidates];
+}
