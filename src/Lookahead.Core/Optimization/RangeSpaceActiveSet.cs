@@ -82,6 +82,16 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// </summary>
     private readonly int[] runLengths;
 
+    /// <summary>
+    /// The other rows (positions from <see cref="pairCount"/> on) copied flat for a full pass: row g's entries at
+    /// <see cref="generalOffsets"/>[g] … [g + 1] of the column and value arrays, the first
+    /// <see cref="generalRuns"/>[g] of them in consecutive columns.
+    /// </summary>
+    private readonly int[] generalOffsets;
+    private readonly int[] generalRuns;
+    private readonly int[] generalColumns;
+    private readonly double[] generalValues;
+
     public RangeSpaceActiveSet(Numerics.CholeskyFactor factor, SparseRows rows)
     {
         this.rows = rows;
@@ -147,6 +157,25 @@ internal sealed unsafe class RangeSpaceActiveSet
             }
 
             runLengths[j] = run;
+        }
+
+        int generals = p - pairCount;
+        generalOffsets = new int[generals + 1];
+        generalRuns = new int[generals];
+        for (int g = 0; g < generals; g++)
+        {
+            int j = order[pairCount + g];
+            generalOffsets[g + 1] = generalOffsets[g] + rows.ColumnsOf(j).Length;
+            generalRuns[g] = runLengths[j];
+        }
+
+        generalColumns = new int[generalOffsets[generals]];
+        generalValues = new double[generalOffsets[generals]];
+        for (int g = 0; g < generals; g++)
+        {
+            int j = order[pairCount + g];
+            rows.ColumnsOf(j).CopyTo(generalColumns.AsSpan(generalOffsets[g]));
+            rows.ValuesOf(j).CopyTo(generalValues.AsSpan(generalOffsets[g]));
         }
 
         firstColumns = new int[pairCount];
@@ -671,33 +700,55 @@ internal sealed unsafe class RangeSpaceActiveSet
             fixed (double* xp = x, x0 = start, w = set.directions, up = U)
             fixed (int* ap = active)
             {
-                int terms = candidate >= 0 ? q + 1 : q;
+                // Sixteen entries of x at a time: four independent sums, so the multiply–adds are not waiting on each other.
                 int c = 0;
-                for (; c + 8 <= n; c += 8)
+                for (; c + 16 <= n; c += 16)
                 {
                     var acc0 = Vector256.Load(x0 + c);
                     var acc1 = Vector256.Load(x0 + c + 4);
-                    for (int i = 0; i < terms; i++)
+                    var acc2 = Vector256.Load(x0 + c + 8);
+                    var acc3 = Vector256.Load(x0 + c + 12);
+                    for (int i = 0; i < q; i++)
                     {
                         var coefficient = Vector256.Create(up[i]);
-                        double* wi = w + ((long)(i < q ? ap[i] : candidate) * n) + c;
+                        double* wi = w + ((long)ap[i] * n) + c;
                         acc0 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi), acc0);
                         acc1 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi + 4), acc1);
+                        acc2 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi + 8), acc2);
+                        acc3 = Vector256.FusedMultiplyAdd(coefficient, Vector256.Load(wi + 12), acc3);
                     }
 
                     Vector256.Store(acc0, xp + c);
                     Vector256.Store(acc1, xp + c + 4);
+                    Vector256.Store(acc2, xp + c + 8);
+                    Vector256.Store(acc3, xp + c + 12);
+                }
+
+                for (; c + 4 <= n; c += 4)
+                {
+                    var acc = Vector256.Load(x0 + c);
+                    for (int i = 0; i < q; i++)
+                    {
+                        acc = Vector256.FusedMultiplyAdd(Vector256.Create(up[i]), Vector256.Load(w + ((long)ap[i] * n) + c), acc);
+                    }
+
+                    Vector256.Store(acc, xp + c);
                 }
 
                 for (; c < n; c++)
                 {
                     double sum = x0[c];
-                    for (int i = 0; i < terms; i++)
+                    for (int i = 0; i < q; i++)
                     {
-                        sum += up[i] * w[((long)(i < q ? ap[i] : candidate) * n) + c];
+                        sum += up[i] * w[((long)ap[i] * n) + c];
                     }
 
                     xp[c] = sum;
+                }
+
+                if (candidate >= 0)
+                {
+                    Numerics.DenseKernels.Axpy(up[q], set.directions.AsSpan(candidate * n, n), x);
                 }
             }
         }
@@ -750,13 +801,19 @@ internal sealed unsafe class RangeSpaceActiveSet
                     }
                 }
 
-                for (; k < p; k++)
+                double* values = stackalloc double[4];
+                for (; k < p; k += 4)
                 {
-                    int c = order[k];
-                    double value = set.RowDot(c, xp) * inverseNorm[c];
-                    if (value < lim[k] && value - scaled[k] < entry)
+                    int rowsHere = Math.Min(4, p - k);
+                    set.GeneralRowValues(k - pairs, rowsHere, xp, values);
+                    for (int g = 0; g < rowsHere; g++)
                     {
-                        Keep(kept, list, length, ref count, ref entry, c, value - scaled[k]);
+                        int c = order[k + g];
+                        double value = values[g] * inverseNorm[c];
+                        if (value < lim[k + g] && value - scaled[k + g] < entry)
+                        {
+                            Keep(kept, list, length, ref count, ref entry, c, value - scaled[k + g]);
+                        }
                     }
                 }
             }
@@ -785,6 +842,73 @@ internal sealed unsafe class RangeSpaceActiveSet
         /// <summary>The scaled value below which row c counts as violated: (b_c − tol·(1 + |b_c|))/‖n_c‖, or −∞ when off.</summary>
         private readonly double Limit(int c) =>
             double.IsNegativeInfinity(rhs[c]) ? double.NegativeInfinity : (rhs[c] - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))) * set.inverseNorms[c];
+    }
+
+    /// <summary>
+    /// n_jᵀx for the general rows g … g + count − 1 (count ≤ 4): when all four runs start in the same column (an
+    /// output limit's rows of one stage, or of two neighbouring stages), their common length is read in one pass over x
+    /// with four sums; what each row has beyond it is added row by row.
+    /// </summary>
+    private void GeneralRowValues(int g, int count, double* x, double* values)
+    {
+        fixed (int* offsets = generalOffsets, runs = generalRuns, columns = generalColumns)
+        fixed (double* entries = generalValues)
+        {
+            int common = 0;
+            if (count == 4)
+            {
+                int start = columns[offsets[g]];
+                bool shared = runs[g] > 0 && runs[g + 1] > 0 && runs[g + 2] > 0 && runs[g + 3] > 0
+                    && columns[offsets[g + 1]] == start && columns[offsets[g + 2]] == start && columns[offsets[g + 3]] == start;
+                if (shared)
+                {
+                    common = Math.Min(Math.Min(runs[g], runs[g + 1]), Math.Min(runs[g + 2], runs[g + 3])) & ~3;
+                    double* v0 = entries + offsets[g];
+                    double* v1 = entries + offsets[g + 1];
+                    double* v2 = entries + offsets[g + 2];
+                    double* v3 = entries + offsets[g + 3];
+                    double* xs = x + start;
+                    var a0 = Vector256<double>.Zero;
+                    var a1 = Vector256<double>.Zero;
+                    var a2 = Vector256<double>.Zero;
+                    var a3 = Vector256<double>.Zero;
+                    for (int c = 0; c < common; c += 4)
+                    {
+                        var xv = Vector256.Load(xs + c);
+                        a0 = Vector256.FusedMultiplyAdd(Vector256.Load(v0 + c), xv, a0);
+                        a1 = Vector256.FusedMultiplyAdd(Vector256.Load(v1 + c), xv, a1);
+                        a2 = Vector256.FusedMultiplyAdd(Vector256.Load(v2 + c), xv, a2);
+                        a3 = Vector256.FusedMultiplyAdd(Vector256.Load(v3 + c), xv, a3);
+                    }
+
+                    values[0] = Vector256.Sum(a0);
+                    values[1] = Vector256.Sum(a1);
+                    values[2] = Vector256.Sum(a2);
+                    values[3] = Vector256.Sum(a3);
+                }
+            }
+
+            for (int r = 0; r < count; r++)
+            {
+                int first = offsets[g + r];
+                int from = first + common;
+                int runEnd = first + runs[g + r];
+                int end = offsets[g + r + 1];
+                double sum = common > 0 ? values[r] : 0;
+                if (from < runEnd)
+                {
+                    sum += Dot(entries + from, x + columns[first] + common, runEnd - from);
+                    from = runEnd;
+                }
+
+                for (int e = from; e < end; e++)
+                {
+                    sum += entries[e] * x[columns[e]];
+                }
+
+                values[r] = sum;
+            }
+        }
     }
 
     /// <summary>n_jᵀx: the leading run of consecutive columns as a dense dot product, the rest gathered.</summary>
