@@ -405,10 +405,15 @@ public class InteriorPointPlanTests
     [Fact]
     public void ColdPlansOfSmallModelsWithRateOrSoftLimitsGoThroughTheInteriorPointAndMatchTheActiveSet()
     {
-        var demo = ModelCompiler.Compile(DemoModel.Document);
-        var inputBoundsOnly = ModelCompiler.Compile(DemoModel.Document with { Limits = DemoModel.Document.Limits! with { InputRateMin = null, InputRateMax = null, OutputMin = null, OutputMax = null, OutputViolationWeight = null } });
+        // The demo over 60 steps (1,083 limit rows): past the rows where the range-space active set plans cold instead.
+        var longer = DemoModel.Document with { Cost = DemoModel.Document.Cost with { Horizon = 60 } };
+        var demo = ModelCompiler.Compile(longer);
+        var inputBoundsOnly = ModelCompiler.Compile(longer with { Limits = longer.Limits! with { InputRateMin = null, InputRateMax = null, OutputMin = null, OutputMax = null, OutputViolationWeight = null } });
+        var demoItself = ModelCompiler.Compile(DemoModel.Document);
         Assert.True(demo.UsesInteriorPoint);
         Assert.False(inputBoundsOnly.UsesInteriorPoint);
+        Assert.True(demoItself.ConstrainedWithPrevious!.RowCount <= ModelCompiler.RangeSpaceRowsUpTo);
+        Assert.False(demoItself.UsesInteriorPoint);
         foreach (var request in DemoModel.States(40, seed: 73))
         {
             var routed = demo.Plan(request);
