@@ -6,8 +6,10 @@ public sealed partial class DualActiveSetSolver
     /// A solve in range-space form: the guesser first when there is one (from the last set on a warm start), then the
     /// range-space iteration, warm from the workspace's last active set when asked and there is one.
     /// </summary>
-    private QpResult SolveInRangeSpace(ReadOnlySpan<double> rhs, Span<double> x, int maxIterations, QpWorkspace workspace, bool warmStart)
+    /// <param name="factored">On return, whether the workspace holds the factor of the active set found (not so when the guesser found it).</param>
+    private QpResult SolveInRangeSpace(ReadOnlySpan<double> rhs, Span<double> x, int maxIterations, QpWorkspace workspace, bool warmStart, out bool factored)
     {
+        factored = false;
         bool warm = warmStart && workspace.LastActiveCount > 0;
         int guesses = 0;
         if (guesser is not null)
@@ -23,6 +25,7 @@ public sealed partial class DualActiveSetSolver
         }
 
         var result = rangeSpace!.Solve(rhs, x, Math.Max(0, maxIterations - guesses), workspace, warm);
+        factored = true;
         return result with { Iterations = result.Iterations + guesses };
     }
 }

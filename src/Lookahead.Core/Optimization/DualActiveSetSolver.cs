@@ -165,8 +165,7 @@ public sealed partial class DualActiveSetSolver
 
         if (rangeSpace is not null)
         {
-            factored = false;
-            return SolveInRangeSpace(rhs, x, maxIterations, workspace, warmStart);
+            return SolveInRangeSpace(rhs, x, maxIterations, workspace, warmStart, out factored);
         }
 
         int q = 0;

@@ -214,7 +214,15 @@ internal sealed unsafe class RangeSpaceActiveSet
         int iterations = 0;
         if (warm && workspace.LastActiveCount > 0)
         {
-            iterations = s.Resume(workspace.LastActiveCount);
+            // The last solve's L and M are still in the workspace when it ended here (not in the guesser); they are
+            // reused for up to MaxWarmChain solves in a row, then formed afresh so updates' rounding cannot pile up.
+            bool factored = workspace.FactoredCount == workspace.LastActiveCount && workspace.WarmChain < DualActiveSetSolver.MaxWarmChain;
+            workspace.WarmChain = factored ? workspace.WarmChain + 1 : 0;
+            iterations = s.Resume(workspace.LastActiveCount, factored);
+        }
+        else
+        {
+            workspace.WarmChain = 0;
         }
 
         int candidate = -1;
@@ -588,23 +596,46 @@ internal sealed unsafe class RangeSpaceActiveSet
         }
 
         /// <summary>
-        /// Warm start from the first <paramref name="kept"/> rows of the active list: rows switched off or dependent on
-        /// earlier ones are left out as L and M are bordered again; then u = S_AA⁻¹(b_A − N_Ax₀), dropping the most
-        /// negative multiplier until none is left. Returns the rows left out (they count as iterations).
+        /// Warm start from the first <paramref name="kept"/> rows of the active list. With <paramref name="factored"/>,
+        /// L and M in the workspace are those rows' and are kept, rows switched off being dropped from them; otherwise
+        /// they are bordered again row by row, leaving out rows switched off or dependent on earlier ones. Then
+        /// u = S_AA⁻¹(b_A − N_Ax₀), dropping the most negative multiplier until none is left. Returns the rows left out
+        /// (they count as iterations).
         /// </summary>
-        public int Resume(int kept)
+        public int Resume(int kept, bool factored)
         {
             int drops = 0;
-            for (int i = 0; i < kept; i++)
+            if (factored)
             {
-                int j = active[i];
-                if (double.IsNegativeInfinity(rhs[j]) || !Directions(j, out double left))
+                Count = kept;
+                for (int i = 0; i < kept; i++)
                 {
-                    drops++;
-                    continue;
+                    isActive[active[i]] = true;
+                    limits[set.position[active[i]]] = double.NegativeInfinity;
                 }
 
-                Add(j, left);
+                for (int i = kept - 1; i >= 0; i--)
+                {
+                    if (double.IsNegativeInfinity(rhs[active[i]]))
+                    {
+                        Drop(i);
+                        drops++;
+                    }
+                }
+            }
+            else
+            {
+                for (int i = 0; i < kept; i++)
+                {
+                    int j = active[i];
+                    if (double.IsNegativeInfinity(rhs[j]) || !Directions(j, out double left))
+                    {
+                        drops++;
+                        continue;
+                    }
+
+                    Add(j, left);
+                }
             }
 
             while (true)

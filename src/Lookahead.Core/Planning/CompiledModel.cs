@@ -390,7 +390,8 @@ public sealed partial class CompiledModel
     /// One limited solve. A cold plan of a model compiled with an interior-point solver takes it first (its cost does
     /// not grow with the number of active limits); a warm-started plan, a plan whose first move cannot reach its window,
     /// and any interior-point result that is not a clean optimum go to the dual active-set method. Both reach the
-    /// same optimum (the tests hold them to each other and to the CVXOPT fixtures).
+    /// same optimum (the tests hold them to each other and to the CVXOPT fixtures). A cold turn of a warm start on the
+    /// active set starts it cold in the warm start's own workspace, which then holds the set it found.
     /// <para>
     /// A warm start pays only while consecutive states are alike. When a warm-started plan needs more than
     /// <see cref="PlanWarmStart.CheapIterations"/> active-set changes, the sequence is taken to have jumped and its next
@@ -400,7 +401,10 @@ public sealed partial class CompiledModel
     /// </summary>
     private ConstrainedOutcome SolveLimited(ConstrainedProblem constrained, Plan plan, PlanRequest request, ReadOnlySpan<double> targetState, ReadOnlySpan<double> targetInput, PlanWarmStart? warmStart)
     {
-        bool cold = warmStart is null || (interiorPoint is not null && warmStart.TakeColdTurn());
+        // Cold turns pay where a cold plan is cheap: on the interior point, or on the range-space active set (whose warm
+        // start from an unrelated set costs its drops; the cold plan still leaves its set in the workspace).
+        bool coldTurns = interiorPoint is not null || constrained.Solver.UsesRangeSpace;
+        bool cold = warmStart is null || (coldTurns && warmStart.TakeColdTurn());
         if (cold && interiorPoint is not null && (request.PreviousInput is null || constrained.Rows.UnreachableFirstMoves(request.PreviousInput).Count == 0))
         {
             var unconstrained = System.Buffers.ArrayPool<double>.Shared.Rent(plan.Inputs.Length);
@@ -421,8 +425,8 @@ public sealed partial class CompiledModel
             }
         }
 
-        var result = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained));
-        if (warmStart is not null && interiorPoint is not null && !cold)
+        var result = constrained.Solve(plan.Inputs, request.State, request.PreviousInput, Options.SoftLimitLinearWeight, MaxSolverIterations, WarmWorkspace(warmStart, constrained), coldStart: cold);
+        if (warmStart is not null && coldTurns && !cold)
         {
             warmStart.Record(result.Iterations);
         }

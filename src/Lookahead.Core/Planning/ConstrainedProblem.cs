@@ -70,7 +70,8 @@ internal sealed class ConstrainedProblem
     /// <param name="warm">A workspace the caller keeps between solves of this variant: the solve starts from its last
     /// active set and leaves its own there. Null takes a pooled workspace and starts cold.</param>
     /// <param name="outputOffsets">C d_k of a measured disturbance ((N+1) rows of p), or empty (see <see cref="LimitRows.RightHandSides"/>).</param>
-    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations, QpWorkspace? warm = null, ReadOnlySpan<double> outputOffsets = default)
+    /// <param name="coldStart">Start cold even with <paramref name="warm"/> (which still receives this solve's active set).</param>
+    public ConstrainedOutcome Solve(Span<double> inputs, ReadOnlySpan<double> x0, ReadOnlySpan<double> previousInput, double? linearWeight, int maxIterations, QpWorkspace? warm = null, ReadOnlySpan<double> outputOffsets = default, bool coldStart = false)
     {
         int nm = decisionVariables;
         int variables = nm + SoftLimits.Count;
@@ -90,7 +91,7 @@ internal sealed class ConstrainedProblem
 
             // The bound on forced violations rolls out x_0 alone; with a disturbance it does not apply.
             var request = new SoftLimitPolicy.Request(x0, previousInput, unreachable, outputOffsets.IsEmpty ? ForcedViolation : null);
-            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, request, warmStart: warm is not null);
+            var (result, iterations, penalty) = SoftLimits.Solve(Solver, startSpan, rhsSpan, xSpan, linearWeight, maxIterations, workspace, request, warmStart: warm is not null && !coldStart);
             xSpan[..nm].CopyTo(inputs);
 
             // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an

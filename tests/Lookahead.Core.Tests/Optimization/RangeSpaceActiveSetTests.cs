@@ -55,7 +55,8 @@ public class RangeSpaceActiveSetTests
         var plain = program.Solver(rangeSpace: false);
         var fast = program.Solver(rangeSpace: true);
         var warm = fast.CreateWorkspace();
-        for (int k = 0; k < 60; k++)
+        // Past MaxWarmChain, so the kept factor is used and then formed afresh once.
+        for (int k = 0; k < DualActiveSetSolver.MaxWarmChain + 40; k++)
         {
             // Neighbouring programs, as consecutive historian rows give; every fifth switches a row off or on.
             for (int i = 0; i < program.Linear.Length; i++)
