@@ -32,8 +32,12 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// </summary>
     public const double DependentTolerance = 1e-11;
 
-    /// <summary>Largest S plus W kept per program: 2²¹ doubles, 16 MiB.</summary>
-    public const long MaxEntries = 1L << 21;
+    /// <summary>
+    /// Largest S plus W kept per program: 2²⁰ doubles, 8 MiB (each model keeps two programs, with and without the
+    /// previous input). The demo needs 345,000 (2.8 MB), M1 162,000; past about 1,000 rows the memory a cached model
+    /// holds would grow faster than the plan gains.
+    /// </summary>
+    public const long MaxEntries = 1L << 20;
 
     /// <summary>
     /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on M1 with rate limits

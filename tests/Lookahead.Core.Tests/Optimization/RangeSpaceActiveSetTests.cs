@@ -117,7 +117,7 @@ public class RangeSpaceActiveSetTests
         Assert.False(RangeSpaceActiveSet.Fits(2000, 8000));
 
         // Set-up work bounds it too: few rows over many variables.
-        Assert.False(RangeSpaceActiveSet.Fits(1500, 1000));
+        Assert.False(RangeSpaceActiveSet.Fits(2000, 300));
     }
 
     private static void AssertClose(double[] expected, double[] actual, string what)
