@@ -8,6 +8,7 @@ public static class Program
     /// <c>--flops</c> prints the floating-point operation counts of one unconstrained plan and exits;
     /// <c>--time-states FILE</c> times plans on the states in FILE for a side-by-side script (<see cref="StateTimer"/>);
     /// <c>--demo-ratios</c> (add <c>engineering</c> for the demo as served) times the demo's limited plans against its unconstrained plan (<see cref="DemoRatios"/>);
+    /// <c>--cold-solvers</c> (add <c>engineering</c>) times the demo's cold plans on the interior point and on the range-space active set over horizons (<see cref="ColdSolvers"/>);
     /// <c>--model-memory [limits] n×m×N …</c> prints what compiled models keep in memory (<see cref="ModelMemory"/>);
     /// <c>--station-load BASE_URL …</c> runs concurrent station loops against a running service (<see cref="StationLoad"/>);
     /// <c>--compile-load BASE_URL PID …</c> plans a small model while the largest models register at once (<see cref="CompileLoad"/>);
@@ -31,6 +32,11 @@ public static class Program
         {
             FlopCounter.Print(Console.Out);
             return 0;
+        }
+
+        if (args.Contains("--cold-solvers", StringComparer.OrdinalIgnoreCase))
+        {
+            return ColdSolvers.Run(Console.Out, engineering: args.Contains("engineering", StringComparer.OrdinalIgnoreCase));
         }
 
         if (args.Contains("--demo-ratios", StringComparer.OrdinalIgnoreCase))

@@ -25,5 +25,11 @@ public sealed record CompileOptions
     /// </summary>
     public bool CachePreviewMaps { get; init; } = true;
 
+    /// <summary>
+    /// Limit rows up to which cold plans go to the range-space active set rather than the interior point
+    /// (<see cref="ModelCompiler.RangeSpaceRowsUpTo"/>); the benchmarks move it to compare the two on one model.
+    /// </summary>
+    internal int RangeSpaceRowsUpTo { get; init; } = ModelCompiler.RangeSpaceRowsUpTo;
+
     public static CompileOptions Default { get; } = new();
 }

@@ -25,10 +25,11 @@ public static class ModelCompiler
     /// <summary>
     /// Up to this many limit rows, a model whose active set runs in range-space form (<see cref="Optimization.RangeSpaceActiveSet"/>)
     /// plans cold on it instead of the interior point: its steps cost O(q²) in the active rows, so it wins while the
-    /// program is small. Measured on the demo over horizons (200 seeded states, median / p99 µs, range space against
-    /// interior point): N = 20 (363 rows) 72 / 224 against 130 / 244; N = 30 (543) 93 / 169 against 161 / 206;
-    /// N = 40 (723) 163 / 298 against 215 / 286; N = 50 (903) 237 / 597 against 273 / 405; N = 60 (1083) 322 / 985
-    /// against 326 / 504. The tail decides: past about 600 rows the interior point's is shorter.
+    /// program is small. Measured on the demo over horizons (<c>--cold-solvers</c>, 200 seeded states, median / p99 µs,
+    /// range space against interior point): N = 20 (363 rows) 40 / 76 against 103 / 138; N = 30 (543) 80 / 138 against
+    /// 155 / 220; N = 40 (723) 146 / 275 against 218 / 302; N = 50 (903) 220 / 554 against 274 / 403. As served (inputs
+    /// in %) alike, but at N = 40 the p99 was 300 against 298. The tail decides: past about 600 rows the interior
+    /// point's is the shorter.
     /// </summary>
     internal const int RangeSpaceRowsUpTo = 600;
 
@@ -111,7 +112,7 @@ public static class ModelCompiler
             cancellationToken.ThrowIfCancellationRequested();
             constrainedWith = ReferenceEquals(withPrevious, withoutPrevious) ? constrainedWithout : new ConstrainedProblem(model, a, b, withPrevious);
             cancellationToken.ThrowIfCancellationRequested();
-            bool smallRangeSpace = constrainedWith.Solver.UsesRangeSpace && constrainedWith.RowCount <= RangeSpaceRowsUpTo;
+            bool smallRangeSpace = constrainedWith.Solver.UsesRangeSpace && constrainedWith.RowCount <= options.RangeSpaceRowsUpTo;
             if ((model.Limits.HasRateBounds || model.Limits.HasOutputBounds) && model.StateCount + model.InputCount <= InteriorPointUpTo && !smallRangeSpace)
             {
                 int cap = Math.Min(options.MaxSolverIterations ?? InteriorPointProblem.DefaultMaxIterations, InteriorPointProblem.DefaultMaxIterations);
