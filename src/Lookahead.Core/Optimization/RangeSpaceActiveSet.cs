@@ -45,6 +45,12 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// </summary>
     public const int CandidateListLength = 8;
 
+    /// <summary>
+    /// The optimum is refined (see <c>State.Refine</c>) only when an active row is further than this × (1 + |b_j|)
+    /// from its limit: at ordinary multipliers the rows sit at rounding level and the step would change nothing.
+    /// </summary>
+    public const double RefineAbove = 1e-13;
+
     /// <summary>Work allowed to form W and S at registration, in multiply–adds (n·p·(n + p)): about a second.</summary>
     public const long MaxSetUpWork = 1L << 30;
 
@@ -383,11 +389,56 @@ internal sealed unsafe class RangeSpaceActiveSet
                 double* gathered = rp;
                 Gather(sp, ap, gathered, q);
 
+                // y = M s, four rows at a time: one pass over s for their common columns, then each row's own end.
                 double norm2 = 0;
-                for (int i = 0; i < q; i++)
+                int row = 0;
+                for (; row + 4 <= q; row += 4)
                 {
-                    double value = Dot(mp + (i * n), gathered, i + 1);
-                    yp[i] = value;
+                    double* m0 = mp + (row * n);
+                    double* m1 = m0 + n;
+                    double* m2 = m1 + n;
+                    double* m3 = m2 + n;
+                    int common = (row + 1) & ~3;
+                    var a0 = Vector256<double>.Zero;
+                    var a1 = Vector256<double>.Zero;
+                    var a2 = Vector256<double>.Zero;
+                    var a3 = Vector256<double>.Zero;
+                    for (int c = 0; c < common; c += 4)
+                    {
+                        var sv = Vector256.Load(gathered + c);
+                        a0 = Vector256.FusedMultiplyAdd(Vector256.Load(m0 + c), sv, a0);
+                        a1 = Vector256.FusedMultiplyAdd(Vector256.Load(m1 + c), sv, a1);
+                        a2 = Vector256.FusedMultiplyAdd(Vector256.Load(m2 + c), sv, a2);
+                        a3 = Vector256.FusedMultiplyAdd(Vector256.Load(m3 + c), sv, a3);
+                    }
+
+                    double y0 = Vector256.Sum(a0);
+                    double y1 = Vector256.Sum(a1);
+                    double y2 = Vector256.Sum(a2);
+                    double y3 = Vector256.Sum(a3);
+                    for (int c = common; c <= row; c++)
+                    {
+                        double sc = gathered[c];
+                        y0 += m0[c] * sc;
+                        y1 += m1[c] * sc;
+                        y2 += m2[c] * sc;
+                        y3 += m3[c] * sc;
+                    }
+
+                    y1 += m1[row + 1] * gathered[row + 1];
+                    y2 += (m2[row + 1] * gathered[row + 1]) + (m2[row + 2] * gathered[row + 2]);
+                    y3 += (m3[row + 1] * gathered[row + 1]) + (m3[row + 2] * gathered[row + 2]) + (m3[row + 3] * gathered[row + 3]);
+                    yp[row] = y0;
+                    yp[row + 1] = y1;
+                    yp[row + 2] = y2;
+                    yp[row + 3] = y3;
+                    norm2 += (y0 * y0) + (y1 * y1) + (y2 * y2) + (y3 * y3);
+                }
+
+                for (; row < q; row++)
+                {
+                    double value = Dot(mp + (row * n), gathered, row + 1);
+                    yp[row] = value;
                     norm2 += value * value;
                 }
 
@@ -561,12 +612,20 @@ internal sealed unsafe class RangeSpaceActiveSet
                 return;
             }
 
+            bool off = false;
             fixed (double* xp = x)
             {
                 for (int i = 0; i < q; i++)
                 {
-                    y[i] = rhs[active[i]] - set.RowDot(active[i], xp);
+                    double b = rhs[active[i]];
+                    y[i] = b - set.RowDot(active[i], xp);
+                    off |= Math.Abs(y[i]) > RefineAbove * (1 + Math.Abs(b));
                 }
+            }
+
+            if (!off)
+            {
+                return;
             }
 
             // Δu = MᵀM(b_A − N_Ax), into R.
