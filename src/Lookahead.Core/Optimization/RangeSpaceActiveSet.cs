@@ -447,13 +447,27 @@ internal sealed unsafe class RangeSpaceActiveSet
                 int j = 0;
                 for (; j + 4 <= q; j += 4)
                 {
-                    var acc = Vector256<double>.Zero;
-                    for (int i = j + 4; i < q; i++)
+                    // Four sums over alternate rows, so the multiply–adds do not wait on each other.
+                    var acc0 = Vector256<double>.Zero;
+                    var acc1 = Vector256<double>.Zero;
+                    var acc2 = Vector256<double>.Zero;
+                    var acc3 = Vector256<double>.Zero;
+                    int i4 = j + 4;
+                    for (; i4 + 4 <= q; i4 += 4)
                     {
-                        acc = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i]), Vector256.Load(mp + (i * n) + j), acc);
+                        double* mi = mp + (i4 * n) + j;
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4]), Vector256.Load(mi), acc0);
+                        acc1 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 1]), Vector256.Load(mi + n), acc1);
+                        acc2 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 2]), Vector256.Load(mi + (2 * n)), acc2);
+                        acc3 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 3]), Vector256.Load(mi + (3 * n)), acc3);
                     }
 
-                    Vector256.Store(acc, rp + j);
+                    for (; i4 < q; i4++)
+                    {
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4]), Vector256.Load(mp + (i4 * n) + j), acc0);
+                    }
+
+                    Vector256.Store((acc0 + acc1) + (acc2 + acc3), rp + j);
                     for (int i = j; i < j + 4; i++)
                     {
                         for (int k = j; k <= i; k++)
