@@ -19,8 +19,9 @@ namespace Lookahead.Core.Optimization;
 /// Adding a row borders L by one row and M by −rᵀ/d (d the new diagonal); dropping one removes its row and column
 /// from L and restores the trailing block by rotations, which applied to M's rows keep M = L⁻¹: O(q²) either way.
 /// <para>
-/// Measured against the J form on the same plans (docs/performance.md): M1 with input and rate limits 35–36 µs
-/// against 168–184 µs; the demo's limited plans on this path 82 µs against 805 µs. The iterates agree to rounding.
+/// Measured against the J form on the same plans (docs/performance.md): M1 with input and rate limits 33 µs against
+/// 166–186 µs; the demo's limited plans on this path 70–82 µs against 805 µs. The optima agree to rounding (the
+/// tests hold the two forms to 1e-9); the candidate list can make the path differ.
 /// </para>
 /// </summary>
 internal sealed unsafe class RangeSpaceActiveSet
@@ -34,8 +35,8 @@ internal sealed unsafe class RangeSpaceActiveSet
 
     /// <summary>
     /// Largest S plus W kept per program: 2²⁰ doubles, 8 MiB (each model keeps two programs, with and without the
-    /// previous input). The demo needs 345,000 (2.8 MB), M1 162,000; past about 1,000 rows the memory a cached model
-    /// holds would grow faster than the plan gains.
+    /// previous input). The demo needs 345,000 (2.8 MB), M1 162,000. A bound on what a cached model holds for it:
+    /// S grows with the square of the rows.
     /// </summary>
     public const long MaxEntries = 1L << 20;
 
@@ -531,8 +532,8 @@ internal sealed unsafe class RangeSpaceActiveSet
         }
 
         /// <summary>
-        /// Removes active row k: the rows below it move up without their entry in column k, the trailing block of L
-        /// absorbs that column (L̃L̃ᵀ = L₂₂L₂₂ᵀ + vvᵀ) by a rank-one update, and M's rows from k on are formed again.
+        /// Removes active row k: the rows below it move up without their entry in column k, and the trailing block of
+        /// L absorbs that column (L̃L̃ᵀ = L₂₂L₂₂ᵀ + vvᵀ) by rotations; the same rotations on M's rows keep M = L⁻¹.
         /// </summary>
         public void Drop(int k)
         {
