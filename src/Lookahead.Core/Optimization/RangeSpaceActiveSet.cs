@@ -384,13 +384,30 @@ internal sealed unsafe class RangeSpaceActiveSet
         {
             int q = Count;
             var sRow = set.curvature.AsSpan(candidate * p, p);
-            fixed (double* mp = m, yp = y, rp = R, sp = sRow)
+            fixed (double* yp = y, rp = R, sp = sRow)
             fixed (int* ap = active)
             {
-                double* gathered = rp;
-                Gather(sp, ap, gathered, q);
+                Gather(sp, ap, rp, q);
+                double norm2 = InverseProducts(rp, yp, rp);
+                double spp = sp[candidate];
+                curvatureLeft = spp - norm2;
 
-                // y = M s, four rows at a time: one pass over s for their common columns, then each row's own end.
+                // With q = n the active rows span every direction (the factor has no room for another row).
+                return q < n && curvatureLeft > DependentTolerance * spp;
+            }
+        }
+
+        /// <summary>
+        /// forward = M·source and result = Mᵀ·forward (so result = S_AA⁻¹·source), returning ‖forward‖². result may be
+        /// source itself (source is read in full first); forward may be neither.
+        /// </summary>
+        private readonly double InverseProducts(double* source, double* forward, double* result)
+        {
+            int q = Count;
+            fixed (double* mp = m)
+            {
+                // forward = M source, four rows at a time: one pass over source for their common columns, then each
+                // row's own end.
                 double norm2 = 0;
                 int row = 0;
                 for (; row + 4 <= q; row += 4)
@@ -400,51 +417,35 @@ internal sealed unsafe class RangeSpaceActiveSet
                     double* m2 = m1 + n;
                     double* m3 = m2 + n;
                     int common = (row + 1) & ~3;
-                    var a0 = Vector256<double>.Zero;
-                    var a1 = Vector256<double>.Zero;
-                    var a2 = Vector256<double>.Zero;
-                    var a3 = Vector256<double>.Zero;
-                    for (int c = 0; c < common; c += 4)
-                    {
-                        var sv = Vector256.Load(gathered + c);
-                        a0 = Vector256.FusedMultiplyAdd(Vector256.Load(m0 + c), sv, a0);
-                        a1 = Vector256.FusedMultiplyAdd(Vector256.Load(m1 + c), sv, a1);
-                        a2 = Vector256.FusedMultiplyAdd(Vector256.Load(m2 + c), sv, a2);
-                        a3 = Vector256.FusedMultiplyAdd(Vector256.Load(m3 + c), sv, a3);
-                    }
-
-                    double y0 = Vector256.Sum(a0);
-                    double y1 = Vector256.Sum(a1);
-                    double y2 = Vector256.Sum(a2);
-                    double y3 = Vector256.Sum(a3);
+                    FourDots(m0, m1, m2, m3, source, common, out double y0, out double y1, out double y2, out double y3);
                     for (int c = common; c <= row; c++)
                     {
-                        double sc = gathered[c];
+                        double sc = source[c];
                         y0 += m0[c] * sc;
                         y1 += m1[c] * sc;
                         y2 += m2[c] * sc;
                         y3 += m3[c] * sc;
                     }
 
-                    y1 += m1[row + 1] * gathered[row + 1];
-                    y2 += (m2[row + 1] * gathered[row + 1]) + (m2[row + 2] * gathered[row + 2]);
-                    y3 += (m3[row + 1] * gathered[row + 1]) + (m3[row + 2] * gathered[row + 2]) + (m3[row + 3] * gathered[row + 3]);
-                    yp[row] = y0;
-                    yp[row + 1] = y1;
-                    yp[row + 2] = y2;
-                    yp[row + 3] = y3;
+                    y1 += m1[row + 1] * source[row + 1];
+                    y2 += (m2[row + 1] * source[row + 1]) + (m2[row + 2] * source[row + 2]);
+                    y3 += (m3[row + 1] * source[row + 1]) + (m3[row + 2] * source[row + 2]) + (m3[row + 3] * source[row + 3]);
+                    forward[row] = y0;
+                    forward[row + 1] = y1;
+                    forward[row + 2] = y2;
+                    forward[row + 3] = y3;
                     norm2 += (y0 * y0) + (y1 * y1) + (y2 * y2) + (y3 * y3);
                 }
 
                 for (; row < q; row++)
                 {
-                    double value = Dot(mp + (row * n), gathered, row + 1);
-                    yp[row] = value;
+                    double value = Dot(mp + (row * n), source, row + 1);
+                    forward[row] = value;
                     norm2 += value * value;
                 }
 
-                // r = Mᵀy: r_k = Σ_{i≥k} M_ik y_i, four entries of r at a time: whole rows of M below the block, then
-                // the triangle inside it (entries of M right of the diagonal are not kept, so never read).
+                // result = Mᵀ forward: result_k = Σ_{i≥k} M_ik forward_i, four entries at a time: whole rows of M below
+                // the block, then the triangle inside it (entries of M right of the diagonal are not kept, so never read).
                 int j = 0;
                 for (; j + 4 <= q; j += 4)
                 {
@@ -457,23 +458,23 @@ internal sealed unsafe class RangeSpaceActiveSet
                     for (; i4 + 4 <= q; i4 += 4)
                     {
                         double* mi = mp + (i4 * n) + j;
-                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4]), Vector256.Load(mi), acc0);
-                        acc1 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 1]), Vector256.Load(mi + n), acc1);
-                        acc2 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 2]), Vector256.Load(mi + (2 * n)), acc2);
-                        acc3 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4 + 3]), Vector256.Load(mi + (3 * n)), acc3);
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4]), Vector256.Load(mi), acc0);
+                        acc1 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 1]), Vector256.Load(mi + n), acc1);
+                        acc2 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 2]), Vector256.Load(mi + (2 * n)), acc2);
+                        acc3 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 3]), Vector256.Load(mi + (3 * n)), acc3);
                     }
 
                     for (; i4 < q; i4++)
                     {
-                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(yp[i4]), Vector256.Load(mp + (i4 * n) + j), acc0);
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4]), Vector256.Load(mp + (i4 * n) + j), acc0);
                     }
 
-                    Vector256.Store((acc0 + acc1) + (acc2 + acc3), rp + j);
+                    Vector256.Store((acc0 + acc1) + (acc2 + acc3), result + j);
                     for (int i = j; i < j + 4; i++)
                     {
                         for (int k = j; k <= i; k++)
                         {
-                            rp[k] += mp[(i * n) + k] * yp[i];
+                            result[k] += mp[(i * n) + k] * forward[i];
                         }
                     }
                 }
@@ -483,17 +484,13 @@ internal sealed unsafe class RangeSpaceActiveSet
                     double sum = 0;
                     for (int i = k; i < q; i++)
                     {
-                        sum += mp[(i * n) + k] * yp[i];
+                        sum += mp[(i * n) + k] * forward[i];
                     }
 
-                    rp[k] = sum;
+                    result[k] = sum;
                 }
 
-                double spp = sp[candidate];
-                curvatureLeft = spp - norm2;
-
-                // With q = n the active rows span every direction (the factor has no room for another row).
-                return q < n && curvatureLeft > DependentTolerance * spp;
+                return norm2;
             }
         }
 
@@ -643,27 +640,10 @@ internal sealed unsafe class RangeSpaceActiveSet
                 return;
             }
 
-            // Δu = MᵀM(b_A − N_Ax), into R.
-            for (int i = 0; i < q; i++)
+            // Δu = S_AA⁻¹(b_A − N_Ax), into R.
+            fixed (double* yp = y, zp = spareRow, rp = R)
             {
-                double sum = 0;
-                for (int k = 0; k <= i; k++)
-                {
-                    sum += m[(i * n) + k] * y[k];
-                }
-
-                spareRow[i] = sum;
-            }
-
-            for (int k = 0; k < q; k++)
-            {
-                double sum = 0;
-                for (int i = k; i < q; i++)
-                {
-                    sum += m[(i * n) + k] * spareRow[i];
-                }
-
-                R[k] = sum;
+                InverseProducts(yp, zp, rp);
             }
 
             for (int i = 0; i < q; i++)
@@ -724,32 +704,19 @@ internal sealed unsafe class RangeSpaceActiveSet
                     y[i] = -baseSlack[active[i]];
                 }
 
-                // u = MᵀM(b_A − N_Ax₀).
-                for (int i = 0; i < q; i++)
+                // u = S_AA⁻¹(b_A − N_Ax₀).
+                fixed (double* yp = y, zp = spareRow, up = U)
                 {
-                    double sum = 0;
-                    for (int k = 0; k <= i; k++)
-                    {
-                        sum += m[(i * n) + k] * y[k];
-                    }
-
-                    R[i] = sum;
+                    InverseProducts(yp, zp, up);
                 }
 
                 int drop = -1;
                 double worst = -1e-14;
                 for (int k = 0; k < q; k++)
                 {
-                    double sum = 0;
-                    for (int i = k; i < q; i++)
+                    if (U[k] < worst)
                     {
-                        sum += m[(i * n) + k] * R[i];
-                    }
-
-                    U[k] = sum;
-                    if (sum < worst)
-                    {
-                        worst = sum;
+                        worst = U[k];
                         drop = k;
                     }
                 }
@@ -976,24 +943,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                     double* v1 = entries + offsets[g + 1];
                     double* v2 = entries + offsets[g + 2];
                     double* v3 = entries + offsets[g + 3];
-                    double* xs = x + start;
-                    var a0 = Vector256<double>.Zero;
-                    var a1 = Vector256<double>.Zero;
-                    var a2 = Vector256<double>.Zero;
-                    var a3 = Vector256<double>.Zero;
-                    for (int c = 0; c < common; c += 4)
-                    {
-                        var xv = Vector256.Load(xs + c);
-                        a0 = Vector256.FusedMultiplyAdd(Vector256.Load(v0 + c), xv, a0);
-                        a1 = Vector256.FusedMultiplyAdd(Vector256.Load(v1 + c), xv, a1);
-                        a2 = Vector256.FusedMultiplyAdd(Vector256.Load(v2 + c), xv, a2);
-                        a3 = Vector256.FusedMultiplyAdd(Vector256.Load(v3 + c), xv, a3);
-                    }
-
-                    values[0] = Vector256.Sum(a0);
-                    values[1] = Vector256.Sum(a1);
-                    values[2] = Vector256.Sum(a2);
-                    values[3] = Vector256.Sum(a3);
+                    FourDots(v0, v1, v2, v3, x + start, common, out values[0], out values[1], out values[2], out values[3]);
                 }
             }
 
@@ -1032,6 +982,29 @@ internal sealed unsafe class RangeSpaceActiveSet
             double sum = run > 0 ? Dot(vp, x + cp[0], run) : 0;
             return sum + GatherDot(x, cp + run, vp + run, columns.Length - run);
         }
+    }
+
+    /// <summary>s_i = a_iᵀv over the first <paramref name="length"/> entries (a multiple of four): one pass over v.</summary>
+    [System.Runtime.CompilerServices.MethodImpl(System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
+    private static void FourDots(double* a0, double* a1, double* a2, double* a3, double* v, int length, out double d0, out double d1, out double d2, out double d3)
+    {
+        var s0 = Vector256<double>.Zero;
+        var s1 = Vector256<double>.Zero;
+        var s2 = Vector256<double>.Zero;
+        var s3 = Vector256<double>.Zero;
+        for (int c = 0; c < length; c += 4)
+        {
+            var vv = Vector256.Load(v + c);
+            s0 = Vector256.FusedMultiplyAdd(Vector256.Load(a0 + c), vv, s0);
+            s1 = Vector256.FusedMultiplyAdd(Vector256.Load(a1 + c), vv, s1);
+            s2 = Vector256.FusedMultiplyAdd(Vector256.Load(a2 + c), vv, s2);
+            s3 = Vector256.FusedMultiplyAdd(Vector256.Load(a3 + c), vv, s3);
+        }
+
+        d0 = Vector256.Sum(s0);
+        d1 = Vector256.Sum(s1);
+        d2 = Vector256.Sum(s2);
+        d3 = Vector256.Sum(s3);
     }
 
     /// <summary>Σ_i row[index_i]·weight_i, four gathered entries at a time.</summary>
