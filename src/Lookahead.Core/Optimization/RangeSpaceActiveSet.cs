@@ -68,6 +68,9 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// <summary>1/‖n_j‖: violations are compared as distances.</summary>
     private readonly double[] inverseNorms;
 
+    /// <summary>‖n_j‖ by position in <see cref="order"/>: turns the pass's distances back into slacks.</summary>
+    private readonly double[] normsByPosition;
+
     /// <summary>
     /// The rows in the order a full pass reads them: first those with one or two entries (bounds and rate rows), then
     /// the rest (output rows); <see cref="position"/> is the inverse.
@@ -157,6 +160,12 @@ internal sealed unsafe class RangeSpaceActiveSet
             }
         }
 
+        normsByPosition = new double[p];
+        for (int k = 0; k < p; k++)
+        {
+            normsByPosition[k] = 1 / inverseNorms[order[k]];
+        }
+
         runLengths = new int[p];
         for (int j = 0; j < p; j++)
         {
@@ -225,6 +234,8 @@ internal sealed unsafe class RangeSpaceActiveSet
         int iterations = 0;
         if (warm && workspace.LastActiveCount > 0)
         {
+            s.RecordBase();
+
             // The last solve's L and M are still in the workspace when it ended here (not in the guesser); they are
             // reused for up to MaxWarmChain solves in a row, then formed afresh so updates' rounding cannot pile up.
             bool factored = workspace.FactoredCount == workspace.LastActiveCount && workspace.WarmChain < DualActiveSetSolver.MaxWarmChain;
@@ -278,7 +289,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 }
             }
 
-            double full = primalStep ? -s.Slack(candidate, candidate) / curvatureLeft : double.PositiveInfinity;
+            double full = primalStep ? -s.CandidateSlack(candidate) / curvatureLeft : double.PositiveInfinity;
             double t = Math.Min(partial, full);
             if (double.IsPositiveInfinity(t))
             {
@@ -323,9 +334,17 @@ internal sealed unsafe class RangeSpaceActiveSet
         private readonly Span<double> limits;
         private readonly Span<double> scaledRhs;
 
-        /// <summary>n_cᵀx₀ − b_c per row: slacks at the unconstrained minimiser.</summary>
+        /// <summary>n_cᵀx₀ − b_c by position: slacks at the unconstrained minimiser, recorded by the first full pass.</summary>
         private readonly Span<double> baseSlack;
         private readonly Span<int> candidates;
+        private readonly Span<double> candidateBase;
+
+        /// <summary>Per listed candidate, S_cA in the active rows' order, kept through adds and drops (stride n).</summary>
+        private readonly Span<double> candidateCurvature;
+
+        /// <summary>The listed candidate being added, or −1 when it was not taken from the list.</summary>
+        private int slot;
+        private bool baseKnown;
         private readonly int n;
         private readonly int p;
         private int candidateCount;
@@ -348,23 +367,31 @@ internal sealed unsafe class RangeSpaceActiveSet
             active = workspace.Active;
             isActive = workspace.IsActive;
             isActive.Clear();
-            var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(p, CandidateListLength);
+            var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(p, n, CandidateListLength);
             limits = scratch.Limits;
             scaledRhs = scratch.ScaledRhs;
             candidates = scratch.Candidates;
+            candidateBase = scratch.CandidateBase;
+            candidateCurvature = scratch.CandidateCurvature;
             candidateCount = 0;
+            slot = -1;
+            baseKnown = false;
             Count = 0;
             baseSlack = scratch.BaseSlack;
-            fixed (double* x0 = start)
+            for (int c = 0; c < p; c++)
             {
-                for (int c = 0; c < p; c++)
-                {
-                    int k = set.position[c];
-                    limits[k] = Limit(c);
-                    scaledRhs[k] = rhs[c] * set.inverseNorms[c];
-                    baseSlack[c] = set.RowDot(c, x0) - rhs[c];
-                }
+                int k = set.position[c];
+                limits[k] = Limit(c);
+                scaledRhs[k] = rhs[c] * set.inverseNorms[c];
             }
+        }
+
+        /// <summary>Records the slacks at x₀ by a full pass there before a warm start needs them; the list is discarded.</summary>
+        public void RecordBase()
+        {
+            FormPoint(-1);
+            FullPass();
+            candidateCount = 0;
         }
 
         /// <summary>Active rows.</summary>
@@ -384,11 +411,20 @@ internal sealed unsafe class RangeSpaceActiveSet
         {
             int q = Count;
             var sRow = set.curvature.AsSpan(candidate * p, p);
-            fixed (double* yp = y, rp = R, sp = sRow)
+            fixed (double* yp = y, rp = R, sp = sRow, kept = candidateCurvature)
             fixed (int* ap = active)
             {
-                Gather(sp, ap, rp, q);
-                double norm2 = InverseProducts(rp, yp, rp);
+                double* source = rp;
+                if (slot >= 0)
+                {
+                    source = kept + (slot * n);
+                }
+                else
+                {
+                    Gather(sp, ap, rp, q);
+                }
+
+                double norm2 = InverseProducts(source, yp, rp);
                 double spp = sp[candidate];
                 curvatureLeft = spp - norm2;
 
@@ -494,15 +530,29 @@ internal sealed unsafe class RangeSpaceActiveSet
             }
         }
 
-        /// <summary>n_cᵀx − b_c at the present point x₀ + W_A u_A (+ u_q W_p for a pending candidate p ≥ 0).</summary>
-        public readonly double Slack(int c, int candidate)
+        /// <summary>n_pᵀx − b_p at the present point x₀ + W_A u_A + u_q W_p for the pending candidate p.</summary>
+        public readonly double CandidateSlack(int candidate)
         {
-            var sRow = set.curvature.AsSpan(c * p, p);
-            double sum = baseSlack[c] + (candidate >= 0 ? sRow[candidate] * U[Count] : 0);
+            double pending = set.curvature[((long)candidate * p) + candidate] * U[Count];
+            if (slot >= 0)
+            {
+                return ListedSlack(slot) + pending;
+            }
+
+            var sRow = set.curvature.AsSpan(candidate * p, p);
             fixed (double* sp = sRow, up = U)
             fixed (int* ap = active)
             {
-                return sum + GatherDot(sp, ap, up, Count);
+                return baseSlack[set.position[candidate]] + pending + GatherDot(sp, ap, up, Count);
+            }
+        }
+
+        /// <summary>n_cᵀx − b_c at x₀ + W_A u_A for the listed candidate in slot i.</summary>
+        private readonly double ListedSlack(int i)
+        {
+            fixed (double* kept = candidateCurvature, up = U)
+            {
+                return candidateBase[i] + Dot(kept + (i * n), up, Count);
             }
         }
 
@@ -525,6 +575,11 @@ internal sealed unsafe class RangeSpaceActiveSet
             active[q] = candidate;
             isActive[candidate] = true;
             limits[set.position[candidate]] = double.NegativeInfinity;
+            for (int i = 0; i < candidateCount; i++)
+            {
+                candidateCurvature[(i * n) + q] = set.curvature[((long)candidates[i] * p) + candidate];
+            }
+
             Count = q + 1;
         }
 
@@ -553,6 +608,12 @@ internal sealed unsafe class RangeSpaceActiveSet
                 m.Slice(i * n, i + 1).CopyTo(m.Slice((i - 1) * n, i + 1));
                 active[i - 1] = active[i];
                 U[i - 1] = U[i];
+            }
+
+            for (int i = 0; i < candidateCount; i++)
+            {
+                var row = candidateCurvature.Slice(i * n, q);
+                row[(k + 1)..].CopyTo(row[k..]);
             }
 
             q--;
@@ -701,7 +762,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 int q = Count;
                 for (int i = 0; i < q; i++)
                 {
-                    y[i] = -baseSlack[active[i]];
+                    y[i] = -baseSlack[set.position[active[i]]];
                 }
 
                 // u = S_AA⁻¹(b_A − N_Ax₀).
@@ -752,11 +813,12 @@ internal sealed unsafe class RangeSpaceActiveSet
                     continue;
                 }
 
-                double slack = Slack(c, -1);
+                double slack = ListedSlack(i);
                 if (slack * set.inverseNorms[c] < bestScaled && slack < -DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
                 {
                     bestScaled = slack * set.inverseNorms[c];
                     best = c;
+                    slot = i;
                 }
             }
 
@@ -766,7 +828,24 @@ internal sealed unsafe class RangeSpaceActiveSet
             }
 
             FormPoint(-1);
-            return FullPass();
+            best = FullPass();
+            KeepCandidateRows();
+            slot = best >= 0 ? 0 : -1;
+            return best;
+        }
+
+        /// <summary>Gathers S_cA and the slack at x₀ of each row the last full pass listed.</summary>
+        private void KeepCandidateRows()
+        {
+            fixed (double* kept = candidateCurvature, s = set.curvature)
+            fixed (int* ap = active)
+            {
+                for (int i = 0; i < candidateCount; i++)
+                {
+                    candidateBase[i] = baseSlack[set.position[candidates[i]]];
+                    Gather(s + ((long)candidates[i] * p), ap, kept + (i * n), Count);
+                }
+            }
         }
 
         /// <summary>x = x₀ + W_A u_A (+ u_q W_p while a candidate is pending), q + 1 directions summed per register.</summary>
@@ -840,7 +919,9 @@ internal sealed unsafe class RangeSpaceActiveSet
             int count = 0;
             double entry = double.PositiveInfinity;
             int pairs = set.pairCount;
-            fixed (double* xp = x, lim = limits, scaled = scaledRhs, inverseNorm = set.inverseNorms, v0 = set.firstValues, v1 = set.secondValues)
+            bool record = !baseKnown;
+            baseKnown = true;
+            fixed (double* xp = x, lim = limits, scaled = scaledRhs, inverseNorm = set.inverseNorms, v0 = set.firstValues, v1 = set.secondValues, base0 = baseSlack, norms = set.normsByPosition)
             fixed (int* c0 = set.firstColumns, c1 = set.secondColumns, list = candidates, order = set.order)
             {
                 int k = 0;
@@ -853,6 +934,11 @@ internal sealed unsafe class RangeSpaceActiveSet
                         var second = Avx2.GatherVector256(xp, Vector128.Load(c1 + k), 8);
                         var value = Fma.MultiplyAdd(Vector256.Load(v0 + k), first, Vector256.Load(v1 + k) * second);
                         var violation = value - Vector256.Load(scaled + k);
+                        if (record)
+                        {
+                            Vector256.Store(violation * Vector256.Load(norms + k), base0 + k);
+                        }
+
                         var enters = Vector256.LessThan(value, Vector256.Load(lim + k)) & Vector256.LessThan(violation, Vector256.Create(entry));
                         uint lanes = enters.ExtractMostSignificantBits();
                         while (lanes != 0)
@@ -871,6 +957,11 @@ internal sealed unsafe class RangeSpaceActiveSet
                 for (; k < pairs; k++)
                 {
                     double value = (v0[k] * xp[c0[k]]) + (v1[k] * xp[c1[k]]);
+                    if (record)
+                    {
+                        base0[k] = (value - scaled[k]) * norms[k];
+                    }
+
                     if (value < lim[k] && value - scaled[k] < entry)
                     {
                         Keep(kept, list, length, ref count, ref entry, order[k], value - scaled[k]);
@@ -885,6 +976,11 @@ internal sealed unsafe class RangeSpaceActiveSet
                     for (int g = 0; g < rowsHere; g++)
                     {
                         int c = order[k + g];
+                        if (record)
+                        {
+                            base0[k + g] = values[g] - rhs[c];
+                        }
+
                         double value = values[g] * inverseNorm[c];
                         if (value < lim[k + g] && value - scaled[k + g] < entry)
                         {

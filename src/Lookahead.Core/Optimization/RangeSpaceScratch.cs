@@ -1,12 +1,12 @@
 namespace Lookahead.Core.Optimization;
 
 /// <summary>Per-row arrays of one <see cref="RangeSpaceActiveSet"/> solve, kept with its workspace.</summary>
-internal sealed class RangeSpaceScratch(int rows, int candidates)
+internal sealed class RangeSpaceScratch(int rows, int variables, int candidates)
 {
     /// <summary>Per row (in the order a full pass reads them), the scaled value below which it counts as violated; −∞ while active or switched off.</summary>
     public double[] Limits { get; } = new double[rows];
 
-    /// <summary>Per row, n_jᵀx₀ − b_j at the unconstrained minimiser.</summary>
+    /// <summary>Per row (in the order a full pass reads them), n_jᵀx₀ − b_j at the unconstrained minimiser.</summary>
     public double[] BaseSlack { get; } = new double[rows];
 
     /// <summary>Per row (in the order a full pass reads them), b_j/‖n_j‖.</summary>
@@ -14,4 +14,10 @@ internal sealed class RangeSpaceScratch(int rows, int candidates)
 
     /// <summary>The rows most violated at the last full pass, most violated first.</summary>
     public int[] Candidates { get; } = new int[candidates];
+
+    /// <summary>Per listed candidate, its slack at x₀.</summary>
+    public double[] CandidateBase { get; } = new double[candidates];
+
+    /// <summary>Per listed candidate c, the row S_cA over the active rows in their order (stride: the variables).</summary>
+    public double[] CandidateCurvature { get; } = new double[candidates * variables];
 }
