@@ -1,5 +1,6 @@
 using System.Runtime.Intrinsics;
 using System.Runtime.Intrinsics.X86;
+using static Lookahead.Core.Optimization.PointerKernels;
 
 namespace Lookahead.Core.Optimization;
 
@@ -44,7 +45,7 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on M1 with rate limits
     /// (mean µs per plan, iterations): 1 (the most-violated rule) 117, 54; 4: 95, 68; 8: 80, 71; 16: 93, 70; 32: 94, 68.
     /// </summary>
-    public const int CandidateListLength = 8;
+    public const int CandidateListLength = 16;
 
     /// <summary>
     /// The optimum is refined (see <c>State.Refine</c>) only when an active row is further than this × (1 + |b_j|)
@@ -68,43 +69,8 @@ internal sealed unsafe class RangeSpaceActiveSet
     /// <summary>1/‖n_j‖: violations are compared as distances.</summary>
     private readonly double[] inverseNorms;
 
-    /// <summary>‖n_j‖ by position in <see cref="order"/>: turns the pass's distances back into slacks.</summary>
-    private readonly double[] normsByPosition;
-
-    /// <summary>
-    /// The rows in the order a full pass reads them: first those with one or two entries (bounds and rate rows), then
-    /// the rest (output rows); <see cref="position"/> is the inverse.
-    /// </summary>
-    private readonly int[] order;
-    private readonly int[] position;
-
-    /// <summary>Rows at the head of <see cref="order"/> with one or two entries.</summary>
-    private readonly int pairCount;
-
-    /// <summary>
-    /// Those rows as two column–value pairs scaled by 1/‖n_j‖ (a single entry's second value is 0), by position, so a
-    /// full pass reads four of them at a time by gathers.
-    /// </summary>
-    private readonly int[] firstColumns;
-    private readonly int[] secondColumns;
-    private readonly double[] firstValues;
-    private readonly double[] secondValues;
-
-    /// <summary>
-    /// Per row, how many of its leading entries sit in consecutive columns: an output row's entries cover the inputs
-    /// up to its stage, so that run is read as a contiguous dot product and only the rest is gathered.
-    /// </summary>
-    private readonly int[] runLengths;
-
-    /// <summary>
-    /// The other rows (positions from <see cref="pairCount"/> on) copied flat for a full pass: row g's entries at
-    /// <see cref="generalOffsets"/>[g] … [g + 1] of the column and value arrays, the first
-    /// <see cref="generalRuns"/>[g] of them in consecutive columns.
-    /// </summary>
-    private readonly int[] generalOffsets;
-    private readonly int[] generalRuns;
-    private readonly int[] generalColumns;
-    private readonly double[] generalValues;
+    /// <summary>The rows laid out for full passes.</summary>
+    private readonly RowSweep sweep;
 
     public RangeSpaceActiveSet(Numerics.CholeskyFactor factor, SparseRows rows)
     {
@@ -140,78 +106,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             }
         }
 
-        order = new int[p];
-        position = new int[p];
-        int next = 0;
-        for (int pass = 0; pass < 2; pass++)
-        {
-            for (int j = 0; j < p; j++)
-            {
-                if ((rows.ColumnsOf(j).Length is 1 or 2) == (pass == 0))
-                {
-                    position[j] = next;
-                    order[next++] = j;
-                }
-            }
-
-            if (pass == 0)
-            {
-                pairCount = next;
-            }
-        }
-
-        normsByPosition = new double[p];
-        for (int k = 0; k < p; k++)
-        {
-            normsByPosition[k] = 1 / inverseNorms[order[k]];
-        }
-
-        runLengths = new int[p];
-        for (int j = 0; j < p; j++)
-        {
-            var cols = rows.ColumnsOf(j);
-            int run = cols.Length > 0 ? 1 : 0;
-            while (run < cols.Length && cols[run] == cols[0] + run)
-            {
-                run++;
-            }
-
-            runLengths[j] = run;
-        }
-
-        int generals = p - pairCount;
-        generalOffsets = new int[generals + 1];
-        generalRuns = new int[generals];
-        for (int g = 0; g < generals; g++)
-        {
-            int j = order[pairCount + g];
-            generalOffsets[g + 1] = generalOffsets[g] + rows.ColumnsOf(j).Length;
-            generalRuns[g] = runLengths[j];
-        }
-
-        generalColumns = new int[generalOffsets[generals]];
-        generalValues = new double[generalOffsets[generals]];
-        for (int g = 0; g < generals; g++)
-        {
-            int j = order[pairCount + g];
-            rows.ColumnsOf(j).CopyTo(generalColumns.AsSpan(generalOffsets[g]));
-            rows.ValuesOf(j).CopyTo(generalValues.AsSpan(generalOffsets[g]));
-        }
-
-        firstColumns = new int[pairCount];
-        secondColumns = new int[pairCount];
-        firstValues = new double[pairCount];
-        secondValues = new double[pairCount];
-        for (int k = 0; k < pairCount; k++)
-        {
-            int j = order[k];
-            var cols = rows.ColumnsOf(j);
-            var vals = rows.ValuesOf(j);
-            firstColumns[k] = cols[0];
-            firstValues[k] = vals[0] * inverseNorms[j];
-            secondColumns[k] = cols[^1];
-            secondValues[k] = cols.Length == 2 ? vals[1] * inverseNorms[j] : 0;
-        }
+        sweep = new RowSweep(rows, inverseNorms);
     }
 
     /// <summary>Whether a program of this size may keep S and W, and form them at registration within <see cref="MaxSetUpWork"/>.</summary>
@@ -221,7 +116,7 @@ internal sealed unsafe class RangeSpaceActiveSet
         return entries <= MaxEntries && entries * variables <= MaxSetUpWork;
     }
 
-    public long Bytes => sizeof(double) * (directions.LongLength + curvature.LongLength);
+    public long Bytes => (sizeof(double) * (directions.LongLength + curvature.LongLength)) + sweep.Bytes;
 
     /// <summary>
     /// As <see cref="DualActiveSetSolver.Solve"/> for an inequality-only program, from the unconstrained minimiser in
@@ -334,6 +229,9 @@ internal sealed unsafe class RangeSpaceActiveSet
         private readonly Span<double> limits;
         private readonly Span<double> scaledRhs;
 
+        /// <summary>n_jᵀx/‖n_j‖ by position at the last full pass.</summary>
+        private readonly Span<double> values;
+
         /// <summary>n_cᵀx₀ − b_c by position: slacks at the unconstrained minimiser, recorded by the first full pass.</summary>
         private readonly Span<double> baseSlack;
         private readonly Span<int> candidates;
@@ -370,6 +268,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(p, n, CandidateListLength);
             limits = scratch.Limits;
             scaledRhs = scratch.ScaledRhs;
+            values = scratch.Values;
             candidates = scratch.Candidates;
             candidateBase = scratch.CandidateBase;
             candidateCurvature = scratch.CandidateCurvature;
@@ -380,7 +279,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             baseSlack = scratch.BaseSlack;
             for (int c = 0; c < p; c++)
             {
-                int k = set.position[c];
+                int k = set.sweep.Position[c];
                 limits[k] = Limit(c);
                 scaledRhs[k] = rhs[c] * set.inverseNorms[c];
             }
@@ -543,7 +442,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             fixed (double* sp = sRow, up = U)
             fixed (int* ap = active)
             {
-                return baseSlack[set.position[candidate]] + pending + GatherDot(sp, ap, up, Count);
+                return baseSlack[set.sweep.Position[candidate]] + pending + GatherDot(sp, ap, up, Count);
             }
         }
 
@@ -574,7 +473,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             mRow[q] = inverse;
             active[q] = candidate;
             isActive[candidate] = true;
-            limits[set.position[candidate]] = double.NegativeInfinity;
+            limits[set.sweep.Position[candidate]] = double.NegativeInfinity;
             for (int i = 0; i < candidateCount; i++)
             {
                 candidateCurvature[(i * n) + q] = set.curvature[((long)candidates[i] * p) + candidate];
@@ -591,7 +490,7 @@ internal sealed unsafe class RangeSpaceActiveSet
         {
             int q = Count;
             isActive[active[k]] = false;
-            limits[set.position[active[k]]] = Limit(active[k]);
+            limits[set.sweep.Position[active[k]]] = Limit(active[k]);
             var v = y;
 
             // M's row k is set aside; the rows below move up whole (still in the old columns, 0 … i + 1 in slot i).
@@ -691,7 +590,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 for (int i = 0; i < q; i++)
                 {
                     double b = rhs[active[i]];
-                    y[i] = b - set.RowDot(active[i], xp);
+                    y[i] = b - set.sweep.RowDot(active[i], xp);
                     off |= Math.Abs(y[i]) > RefineAbove * (1 + Math.Abs(b));
                 }
             }
@@ -730,7 +629,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 for (int i = 0; i < kept; i++)
                 {
                     isActive[active[i]] = true;
-                    limits[set.position[active[i]]] = double.NegativeInfinity;
+                    limits[set.sweep.Position[active[i]]] = double.NegativeInfinity;
                 }
 
                 for (int i = kept - 1; i >= 0; i--)
@@ -762,7 +661,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 int q = Count;
                 for (int i = 0; i < q; i++)
                 {
-                    y[i] = -baseSlack[set.position[active[i]]];
+                    y[i] = -baseSlack[set.sweep.Position[active[i]]];
                 }
 
                 // u = S_AA⁻¹(b_A − N_Ax₀).
@@ -842,7 +741,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             {
                 for (int i = 0; i < candidateCount; i++)
                 {
-                    candidateBase[i] = baseSlack[set.position[candidates[i]]];
+                    candidateBase[i] = baseSlack[set.sweep.Position[candidates[i]]];
                     Gather(s + ((long)candidates[i] * p), ap, kept + (i * n), Count);
                 }
             }
@@ -918,74 +817,49 @@ internal sealed unsafe class RangeSpaceActiveSet
             double* kept = stackalloc double[length];
             int count = 0;
             double entry = double.PositiveInfinity;
-            int pairs = set.pairCount;
             bool record = !baseKnown;
             baseKnown = true;
-            fixed (double* xp = x, lim = limits, scaled = scaledRhs, inverseNorm = set.inverseNorms, v0 = set.firstValues, v1 = set.secondValues, base0 = baseSlack, norms = set.normsByPosition)
-            fixed (int* c0 = set.firstColumns, c1 = set.secondColumns, list = candidates, order = set.order)
+            fixed (double* xp = x, value = values, lim = limits, scaled = scaledRhs, base0 = baseSlack, norms = set.sweep.NormsByPosition)
+            fixed (int* list = candidates, order = set.sweep.Order)
             {
+                set.sweep.Values(xp, value);
                 int k = 0;
-                if (Avx2.IsSupported && Fma.IsSupported)
-                {
-                    // Four rows at a time; the (rare) rows that are violated and enter the list are taken one by one.
-                    for (; k + 4 <= pairs; k += 4)
-                    {
-                        var first = Avx2.GatherVector256(xp, Vector128.Load(c0 + k), 8);
-                        var second = Avx2.GatherVector256(xp, Vector128.Load(c1 + k), 8);
-                        var value = Fma.MultiplyAdd(Vector256.Load(v0 + k), first, Vector256.Load(v1 + k) * second);
-                        var violation = value - Vector256.Load(scaled + k);
-                        if (record)
-                        {
-                            Vector256.Store(violation * Vector256.Load(norms + k), base0 + k);
-                        }
 
-                        var enters = Vector256.LessThan(value, Vector256.Load(lim + k)) & Vector256.LessThan(violation, Vector256.Create(entry));
-                        uint lanes = enters.ExtractMostSignificantBits();
-                        while (lanes != 0)
-                        {
-                            int lane = System.Numerics.BitOperations.TrailingZeroCount(lanes);
-                            lanes &= lanes - 1;
-                            double v = violation.GetElement(lane);
-                            if (v < entry)
-                            {
-                                Keep(kept, list, length, ref count, ref entry, order[k + lane], v);
-                            }
-                        }
-                    }
-                }
-
-                for (; k < pairs; k++)
+                // Four rows at a time; the (rare) rows that are violated and enter the list are taken one by one.
+                for (; k + 4 <= p; k += 4)
                 {
-                    double value = (v0[k] * xp[c0[k]]) + (v1[k] * xp[c1[k]]);
+                    var v = Vector256.Load(value + k);
+                    var violation = v - Vector256.Load(scaled + k);
                     if (record)
                     {
-                        base0[k] = (value - scaled[k]) * norms[k];
+                        Vector256.Store(violation * Vector256.Load(norms + k), base0 + k);
                     }
 
-                    if (value < lim[k] && value - scaled[k] < entry)
+                    var enters = Vector256.LessThan(v, Vector256.Load(lim + k)) & Vector256.LessThan(violation, Vector256.Create(entry));
+                    uint lanes = enters.ExtractMostSignificantBits();
+                    while (lanes != 0)
                     {
-                        Keep(kept, list, length, ref count, ref entry, order[k], value - scaled[k]);
+                        int lane = System.Numerics.BitOperations.TrailingZeroCount(lanes);
+                        lanes &= lanes - 1;
+                        double d = violation.GetElement(lane);
+                        if (d < entry)
+                        {
+                            Keep(kept, list, length, ref count, ref entry, order[k + lane], d);
+                        }
                     }
                 }
 
-                double* values = stackalloc double[4];
-                for (; k < p; k += 4)
+                for (; k < p; k++)
                 {
-                    int rowsHere = Math.Min(4, p - k);
-                    set.GeneralRowValues(k - pairs, rowsHere, xp, values);
-                    for (int g = 0; g < rowsHere; g++)
+                    double violation = value[k] - scaled[k];
+                    if (record)
                     {
-                        int c = order[k + g];
-                        if (record)
-                        {
-                            base0[k + g] = values[g] - rhs[c];
-                        }
+                        base0[k] = violation * norms[k];
+                    }
 
-                        double value = values[g] * inverseNorm[c];
-                        if (value < lim[k + g] && value - scaled[k + g] < entry)
-                        {
-                            Keep(kept, list, length, ref count, ref entry, c, value - scaled[k + g]);
-                        }
+                    if (value[k] < lim[k] && violation < entry)
+                    {
+                        Keep(kept, list, length, ref count, ref entry, order[k], violation);
                     }
                 }
             }
@@ -1014,161 +888,5 @@ internal sealed unsafe class RangeSpaceActiveSet
         /// <summary>The scaled value below which row c counts as violated: (b_c − tol·(1 + |b_c|))/‖n_c‖, or −∞ when off.</summary>
         private readonly double Limit(int c) =>
             double.IsNegativeInfinity(rhs[c]) ? double.NegativeInfinity : (rhs[c] - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))) * set.inverseNorms[c];
-    }
-
-    /// <summary>
-    /// n_jᵀx for the general rows g … g + count − 1 (count ≤ 4): when all four runs start in the same column (an
-    /// output limit's rows of one stage, or of two neighbouring stages), their common length is read in one pass over x
-    /// with four sums; what each row has beyond it is added row by row.
-    /// </summary>
-    private void GeneralRowValues(int g, int count, double* x, double* values)
-    {
-        fixed (int* offsets = generalOffsets, runs = generalRuns, columns = generalColumns)
-        fixed (double* entries = generalValues)
-        {
-            int common = 0;
-            if (count == 4)
-            {
-                int start = columns[offsets[g]];
-                bool shared = runs[g] > 0 && runs[g + 1] > 0 && runs[g + 2] > 0 && runs[g + 3] > 0
-                    && columns[offsets[g + 1]] == start && columns[offsets[g + 2]] == start && columns[offsets[g + 3]] == start;
-                if (shared)
-                {
-                    common = Math.Min(Math.Min(runs[g], runs[g + 1]), Math.Min(runs[g + 2], runs[g + 3])) & ~3;
-                    double* v0 = entries + offsets[g];
-                    double* v1 = entries + offsets[g + 1];
-                    double* v2 = entries + offsets[g + 2];
-                    double* v3 = entries + offsets[g + 3];
-                    FourDots(v0, v1, v2, v3, x + start, common, out values[0], out values[1], out values[2], out values[3]);
-                }
-            }
-
-            for (int r = 0; r < count; r++)
-            {
-                int first = offsets[g + r];
-                int from = first + common;
-                int runEnd = first + runs[g + r];
-                int end = offsets[g + r + 1];
-                double sum = common > 0 ? values[r] : 0;
-                if (from < runEnd)
-                {
-                    sum += Dot(entries + from, x + columns[first] + common, runEnd - from);
-                    from = runEnd;
-                }
-
-                for (int e = from; e < end; e++)
-                {
-                    sum += entries[e] * x[columns[e]];
-                }
-
-                values[r] = sum;
-            }
-        }
-    }
-
-    /// <summary>n_jᵀx: the leading run of consecutive columns as a dense dot product, the rest gathered.</summary>
-    private double RowDot(int row, double* x)
-    {
-        var columns = rows.ColumnsOf(row);
-        var values = rows.ValuesOf(row);
-        int run = runLengths[row];
-        fixed (int* cp = columns)
-        fixed (double* vp = values)
-        {
-            double sum = run > 0 ? Dot(vp, x + cp[0], run) : 0;
-            return sum + GatherDot(x, cp + run, vp + run, columns.Length - run);
-        }
-    }
-
-    /// <summary>s_i = a_iᵀv over the first <paramref name="length"/> entries (a multiple of four): one pass over v.</summary>
-    [System.Runtime.CompilerServices.MethodImpl(System.Runtime.CompilerServices.MethodImplOptions.AggressiveInlining)]
-    private static void FourDots(double* a0, double* a1, double* a2, double* a3, double* v, int length, out double d0, out double d1, out double d2, out double d3)
-    {
-        var s0 = Vector256<double>.Zero;
-        var s1 = Vector256<double>.Zero;
-        var s2 = Vector256<double>.Zero;
-        var s3 = Vector256<double>.Zero;
-        for (int c = 0; c < length; c += 4)
-        {
-            var vv = Vector256.Load(v + c);
-            s0 = Vector256.FusedMultiplyAdd(Vector256.Load(a0 + c), vv, s0);
-            s1 = Vector256.FusedMultiplyAdd(Vector256.Load(a1 + c), vv, s1);
-            s2 = Vector256.FusedMultiplyAdd(Vector256.Load(a2 + c), vv, s2);
-            s3 = Vector256.FusedMultiplyAdd(Vector256.Load(a3 + c), vv, s3);
-        }
-
-        d0 = Vector256.Sum(s0);
-        d1 = Vector256.Sum(s1);
-        d2 = Vector256.Sum(s2);
-        d3 = Vector256.Sum(s3);
-    }
-
-    /// <summary>Σ_i row[index_i]·weight_i, four gathered entries at a time.</summary>
-    private static double GatherDot(double* row, int* index, double* weight, int count)
-    {
-        int i = 0;
-        double sum = 0;
-        if (Avx2.IsSupported && Fma.IsSupported)
-        {
-            var acc = Vector256<double>.Zero;
-            for (; i + 4 <= count; i += 4)
-            {
-                acc = Fma.MultiplyAdd(Avx2.GatherVector256(row, Vector128.Load(index + i), 8), Vector256.Load(weight + i), acc);
-            }
-
-            sum = Vector256.Sum(acc);
-        }
-
-        for (; i < count; i++)
-        {
-            sum += row[index[i]] * weight[i];
-        }
-
-        return sum;
-    }
-
-    /// <summary>target_i = row[index_i], four at a time.</summary>
-    private static void Gather(double* row, int* index, double* target, int count)
-    {
-        int i = 0;
-        if (Avx2.IsSupported)
-        {
-            for (; i + 4 <= count; i += 4)
-            {
-                Vector256.Store(Avx2.GatherVector256(row, Vector128.Load(index + i), 8), target + i);
-            }
-        }
-
-        for (; i < count; i++)
-        {
-            target[i] = row[index[i]];
-        }
-    }
-
-    /// <summary>Σ_{k&lt;length} a_k b_k with two vector accumulators.</summary>
-    private static double Dot(double* a, double* b, int length)
-    {
-        var acc0 = Vector256<double>.Zero;
-        var acc1 = Vector256<double>.Zero;
-        int k = 0;
-        for (; k + 8 <= length; k += 8)
-        {
-            acc0 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k), Vector256.Load(b + k), acc0);
-            acc1 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k + 4), Vector256.Load(b + k + 4), acc1);
-        }
-
-        if (k + 4 <= length)
-        {
-            acc0 = Vector256.FusedMultiplyAdd(Vector256.Load(a + k), Vector256.Load(b + k), acc0);
-            k += 4;
-        }
-
-        double sum = Vector256.Sum(acc0 + acc1);
-        for (; k < length; k++)
-        {
-            sum += a[k] * b[k];
-        }
-
-        return sum;
     }
 }

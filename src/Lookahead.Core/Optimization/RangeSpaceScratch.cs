@@ -9,6 +9,9 @@ internal sealed class RangeSpaceScratch(int rows, int variables, int candidates)
     /// <summary>Per row (in the order a full pass reads them), n_jᵀx₀ − b_j at the unconstrained minimiser.</summary>
     public double[] BaseSlack { get; } = new double[rows];
 
+    /// <summary>Per row (in the order a full pass reads them), n_jᵀx/‖n_j‖ at the last full pass.</summary>
+    public double[] Values { get; } = new double[rows];
+
     /// <summary>Per row (in the order a full pass reads them), b_j/‖n_j‖.</summary>
     public double[] ScaledRhs { get; } = new double[rows];
 
