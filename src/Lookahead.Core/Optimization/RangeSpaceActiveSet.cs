@@ -476,7 +476,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             limits[set.sweep.Position[candidate]] = double.NegativeInfinity;
             for (int i = 0; i < candidateCount; i++)
             {
-                candidateCurvature[(i * n) + q] = set.curvature[((long)candidates[i] * p) + candidate];
+                candidateCurvature[(i * n) + q] = set.curvature[((long)candidate * p) + candidates[i]];
             }
 
             Count = q + 1;
@@ -718,6 +718,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                     bestScaled = slack * set.inverseNorms[c];
                     best = c;
                     slot = i;
+                    break;
                 }
             }
 
