@@ -55,11 +55,12 @@ public static class CompiledSizeEstimate
                     perVariant += rows * (rows + decision);
                 }
 
-                // The range-space form's S and W (rows include the slacks' own bounds).
+                // The range-space form's S and W (rows include the slacks' own bounds), and its sweep's layout: about
+                // eight doubles' worth per row and a copy of the output rows that mirror no other (half of them).
                 double allRows = rows + soft;
                 if (allRows <= int.MaxValue && withSlacks <= int.MaxValue && Optimization.RangeSpaceActiveSet.Fits((int)withSlacks, (int)allRows))
                 {
-                    perVariant += allRows * (allRows + withSlacks);
+                    perVariant += (allRows * (allRows + withSlacks + 8)) + (0.75 * outputSides * m * N * (N + 1) / 2);
                 }
 
                 // Limit rows: an int and a double per nonzero (1.5 doubles); a soft output row at stage k has about k·m.

@@ -20,6 +20,10 @@ internal sealed class ConstrainedProblem
     private readonly int decisionVariables;
     private readonly ConcurrentBag<QpWorkspace> pool = new();
 
+    /// <summary>Each row's place when the active limits are reported by step, then kind, then index; and its inverse.</summary>
+    private readonly int[] reportRank;
+    private readonly int[] rowAtRank;
+
     public ConstrainedProblem(ValidatedModel model, Matrix<double> a, Matrix<double> b, GainSet gains)
     {
         decisionVariables = model.Horizon * model.InputCount;
@@ -43,6 +47,14 @@ internal sealed class ConstrainedProblem
         }
 
         Solver = new DualActiveSetSolver(factor, Rows.Normals, 0, guessActiveSets: true, rangeSpace: true);
+        rowAtRank = Enumerable.Range(0, Rows.Count)
+            .OrderBy(j => Rows.Meaning(j).Step).ThenBy(j => Rows.Meaning(j).Kind).ThenBy(j => Rows.Meaning(j).Index)
+            .ToArray();
+        reportRank = new int[Rows.Count];
+        for (int rank = 0; rank < rowAtRank.Length; rank++)
+        {
+            reportRank[rowAtRank[rank]] = rank;
+        }
     }
 
     public LimitRows Rows { get; }
@@ -57,7 +69,7 @@ internal sealed class ConstrainedProblem
     public int RowCount => Rows.Count;
 
     /// <summary>Memory held: the solver's J₀ (a dense square over [U; ε]), its range-space S and W, and the rows.</summary>
-    public long Bytes => (sizeof(double) * ((long)Solver.Variables * Solver.Variables)) + Solver.GuessBytes + Solver.RangeSpaceBytes + Rows.Bytes;
+    public long Bytes => (sizeof(double) * ((long)Solver.Variables * Solver.Variables)) + Solver.GuessBytes + Solver.RangeSpaceBytes + Rows.Bytes + (sizeof(int) * 2L * Rows.Count);
 
     /// <inheritdoc cref="LimitRows.OutputRowEntries"/>
     public static long OutputRowEntries(ValidatedModel model) => LimitRows.OutputRowEntries(model);
@@ -170,17 +182,26 @@ internal sealed class ConstrainedProblem
     /// <summary>The limits holding with equality, slack bounds left out, ordered by step, kind and index.</summary>
     private List<ActiveLimit> ActiveLimits(QpWorkspace workspace, int activeCount)
     {
-        var active = new List<ActiveLimit>();
+        // Ranks in (step, kind, index) order were fixed with the rows, so sorting the plan's limits sorts integers.
+        var ranks = activeCount <= 512 ? stackalloc int[activeCount] : new int[activeCount];
+        int count = 0;
         foreach (int row in workspace.ActiveConstraints(activeCount))
         {
-            var what = Rows.Meaning(row);
-            if (!what.IsSlackBound)
+            if (!Rows.Meaning(row).IsSlackBound)
             {
-                active.Add(new ActiveLimit(what.Kind, what.Step, what.Index));
+                ranks[count++] = reportRank[row];
             }
         }
 
-        active.Sort((l, r) => l.Step != r.Step ? l.Step.CompareTo(r.Step) : l.Kind != r.Kind ? l.Kind.CompareTo(r.Kind) : l.Index.CompareTo(r.Index));
+        ranks = ranks[..count];
+        ranks.Sort();
+        var active = new List<ActiveLimit>(count);
+        foreach (int rank in ranks)
+        {
+            var what = Rows.Meaning(rowAtRank[rank]);
+            active.Add(new ActiveLimit(what.Kind, what.Step, what.Index));
+        }
+
         return active;
     }
 }
