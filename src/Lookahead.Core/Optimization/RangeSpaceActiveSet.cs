@@ -224,6 +224,9 @@ internal sealed unsafe class RangeSpaceActiveSet
         private readonly Span<double> m;
         private readonly Span<double> y;
         private readonly Span<double> spareRow;
+
+        /// <summary>Row stride of M: room for each row's zeros to the end of its block of four.</summary>
+        private readonly int ms;
         private readonly Span<int> active;
         private readonly Span<bool> isActive;
         private readonly Span<double> limits;
@@ -257,15 +260,16 @@ internal sealed unsafe class RangeSpaceActiveSet
             start = workspace.Start;
             x.CopyTo(start);
             l = workspace.R;
-            m = workspace.J;
-            y = workspace.D;
-            spareRow = workspace.Z;
-            R = workspace.Step;
+            var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(set.p, set.n, CandidateListLength);
+            ms = scratch.InverseStride;
+            m = scratch.Inverse;
+            y = scratch.Forward;
+            spareRow = scratch.Spare;
+            R = scratch.Direction;
             U = workspace.Multipliers;
             active = workspace.Active;
             isActive = workspace.IsActive;
             isActive.Clear();
-            var scratch = workspace.RangeSpaceScratch ??= new RangeSpaceScratch(p, n, CandidateListLength);
             limits = scratch.Limits;
             scaledRhs = scratch.ScaledRhs;
             values = scratch.Values;
@@ -316,7 +320,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 double* source = rp;
                 if (slot >= 0)
                 {
-                    source = kept + (slot * n);
+                    source = kept + (slot * ms);
                 }
                 else
                 {
@@ -339,32 +343,22 @@ internal sealed unsafe class RangeSpaceActiveSet
         private readonly double InverseProducts(double* source, double* forward, double* result)
         {
             int q = Count;
+            int padded = (q + 3) & ~3;
+            for (int c = q; c < padded; c++)
+            {
+                source[c] = 0;
+            }
+
             fixed (double* mp = m)
             {
-                // forward = M source, four rows at a time: one pass over source for their common columns, then each
-                // row's own end.
+                // forward = M source, four rows at a time in one pass over source: a row's entries right of its
+                // diagonal are zero to the end of its block of four (see the class remarks), so every product is whole.
                 double norm2 = 0;
                 int row = 0;
                 for (; row + 4 <= q; row += 4)
                 {
-                    double* m0 = mp + (row * n);
-                    double* m1 = m0 + n;
-                    double* m2 = m1 + n;
-                    double* m3 = m2 + n;
-                    int common = (row + 1) & ~3;
-                    FourDots(m0, m1, m2, m3, source, common, out double y0, out double y1, out double y2, out double y3);
-                    for (int c = common; c <= row; c++)
-                    {
-                        double sc = source[c];
-                        y0 += m0[c] * sc;
-                        y1 += m1[c] * sc;
-                        y2 += m2[c] * sc;
-                        y3 += m3[c] * sc;
-                    }
-
-                    y1 += m1[row + 1] * source[row + 1];
-                    y2 += (m2[row + 1] * source[row + 1]) + (m2[row + 2] * source[row + 2]);
-                    y3 += (m3[row + 1] * source[row + 1]) + (m3[row + 2] * source[row + 2]) + (m3[row + 3] * source[row + 3]);
+                    double* m0 = mp + (row * ms);
+                    FourDots(m0, m0 + ms, m0 + (2 * ms), m0 + (3 * ms), source, row + 4, out double y0, out double y1, out double y2, out double y3);
                     forward[row] = y0;
                     forward[row + 1] = y1;
                     forward[row + 2] = y2;
@@ -374,55 +368,47 @@ internal sealed unsafe class RangeSpaceActiveSet
 
                 for (; row < q; row++)
                 {
-                    double value = Dot(mp + (row * n), source, row + 1);
+                    double value = Dot(mp + (row * ms), source, padded);
                     forward[row] = value;
                     norm2 += value * value;
                 }
 
-                // result = Mᵀ forward: result_k = Σ_{i≥k} M_ik forward_i, four entries at a time: whole rows of M below
-                // the block, then the triangle inside it (entries of M right of the diagonal are not kept, so never read).
-                int j = 0;
-                for (; j + 4 <= q; j += 4)
+                // result = Mᵀ forward: result_k = Σ_{i≥k} M_ik forward_i, four entries at a time over the rows from the
+                // block's own (whose entries right of the diagonal are zero) down, with four sums over alternate rows
+                // so the multiply–adds do not wait on each other.
+                for (int j = 0; j < q; j += 4)
                 {
-                    // Four sums over alternate rows, so the multiply–adds do not wait on each other.
                     var acc0 = Vector256<double>.Zero;
                     var acc1 = Vector256<double>.Zero;
                     var acc2 = Vector256<double>.Zero;
                     var acc3 = Vector256<double>.Zero;
-                    int i4 = j + 4;
-                    for (; i4 + 4 <= q; i4 += 4)
+                    int i = j;
+                    for (; i + 4 <= q; i += 4)
                     {
-                        double* mi = mp + (i4 * n) + j;
-                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4]), Vector256.Load(mi), acc0);
-                        acc1 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 1]), Vector256.Load(mi + n), acc1);
-                        acc2 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 2]), Vector256.Load(mi + (2 * n)), acc2);
-                        acc3 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4 + 3]), Vector256.Load(mi + (3 * n)), acc3);
+                        double* mi = mp + (i * ms) + j;
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i]), Vector256.Load(mi), acc0);
+                        acc1 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i + 1]), Vector256.Load(mi + ms), acc1);
+                        acc2 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i + 2]), Vector256.Load(mi + (2 * ms)), acc2);
+                        acc3 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i + 3]), Vector256.Load(mi + (3 * ms)), acc3);
                     }
 
-                    for (; i4 < q; i4++)
+                    for (; i < q; i++)
                     {
-                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i4]), Vector256.Load(mp + (i4 * n) + j), acc0);
+                        acc0 = Vector256.FusedMultiplyAdd(Vector256.Create(forward[i]), Vector256.Load(mp + (i * ms) + j), acc0);
                     }
 
-                    Vector256.Store((acc0 + acc1) + (acc2 + acc3), result + j);
-                    for (int i = j; i < j + 4; i++)
+                    var sum = (acc0 + acc1) + (acc2 + acc3);
+                    if (j + 4 <= q)
                     {
-                        for (int k = j; k <= i; k++)
+                        Vector256.Store(sum, result + j);
+                    }
+                    else
+                    {
+                        for (int lane = 0; lane < q - j; lane++)
                         {
-                            result[k] += mp[(i * n) + k] * forward[i];
+                            result[j + lane] = sum.GetElement(lane);
                         }
                     }
-                }
-
-                for (int k = j; k < q; k++)
-                {
-                    double sum = 0;
-                    for (int i = k; i < q; i++)
-                    {
-                        sum += mp[(i * n) + k] * forward[i];
-                    }
-
-                    result[k] = sum;
                 }
 
                 return norm2;
@@ -451,7 +437,7 @@ internal sealed unsafe class RangeSpaceActiveSet
         {
             fixed (double* kept = candidateCurvature, up = U)
             {
-                return candidateBase[i] + Dot(kept + (i * n), up, Count);
+                return candidateBase[i] + Dot(kept + (i * ms), up, Count);
             }
         }
 
@@ -462,7 +448,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             double d = Math.Sqrt(curvatureLeft);
             double inverse = 1 / d;
             var lRow = l.Slice(q * n, q + 1);
-            var mRow = m.Slice(q * n, q + 1);
+            var mRow = m.Slice(q * ms, ms);
             y[..q].CopyTo(lRow);
             for (int i = 0; i < q; i++)
             {
@@ -471,12 +457,13 @@ internal sealed unsafe class RangeSpaceActiveSet
 
             lRow[q] = d;
             mRow[q] = inverse;
+            mRow[(q + 1)..((q + 4) & ~3)].Clear();
             active[q] = candidate;
             isActive[candidate] = true;
             limits[set.sweep.Position[candidate]] = double.NegativeInfinity;
             for (int i = 0; i < candidateCount; i++)
             {
-                candidateCurvature[(i * n) + q] = set.curvature[((long)candidate * p) + candidates[i]];
+                candidateCurvature[(i * ms) + q] = set.curvature[((long)candidate * p) + candidates[i]];
             }
 
             Count = q + 1;
@@ -496,7 +483,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             // M's row k is set aside; the rows below move up whole (still in the old columns, 0 … i + 1 in slot i).
             var spare = spareRow[..q];
             spare.Clear();
-            m.Slice(k * n, k + 1).CopyTo(spare);
+            m.Slice(k * ms, k + 1).CopyTo(spare);
             for (int i = k + 1; i < q; i++)
             {
                 v[i - k - 1] = l[(i * n) + k];
@@ -504,14 +491,14 @@ internal sealed unsafe class RangeSpaceActiveSet
                 var to = l.Slice((i - 1) * n, i);
                 from[..k].CopyTo(to);
                 from[(k + 1)..].CopyTo(to[k..]);
-                m.Slice(i * n, i + 1).CopyTo(m.Slice((i - 1) * n, i + 1));
+                m.Slice(i * ms, i + 1).CopyTo(m.Slice((i - 1) * ms, i + 1));
                 active[i - 1] = active[i];
                 U[i - 1] = U[i];
             }
 
             for (int i = 0; i < candidateCount; i++)
             {
-                var row = candidateCurvature.Slice(i * n, q);
+                var row = candidateCurvature.Slice(i * ms, q);
                 row[(k + 1)..].CopyTo(row[k..]);
             }
 
@@ -535,13 +522,14 @@ internal sealed unsafe class RangeSpaceActiveSet
                     v[i - k] = (c * v[i - k]) - (s * lij);
                 }
 
-                Rotate(m.Slice(j * n, j + 2), spare[..(j + 2)], c, s);
+                Rotate(m.Slice(j * ms, j + 2), spare[..(j + 2)], c, s);
             }
 
             for (int j = k; j < q; j++)
             {
-                var row = m.Slice(j * n, j + 2);
+                var row = m.Slice(j * ms, j + 2);
                 row[(k + 1)..].CopyTo(row[k..]);
+                row[j + 1] = 0;
             }
         }
 
@@ -743,7 +731,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                 for (int i = 0; i < candidateCount; i++)
                 {
                     candidateBase[i] = baseSlack[set.sweep.Position[candidates[i]]];
-                    Gather(s + ((long)candidates[i] * p), ap, kept + (i * n), Count);
+                    Gather(s + ((long)candidates[i] * p), ap, kept + (i * ms), Count);
                 }
             }
         }

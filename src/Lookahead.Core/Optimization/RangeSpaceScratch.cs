@@ -3,6 +3,9 @@ namespace Lookahead.Core.Optimization;
 /// <summary>Per-row arrays of one <see cref="RangeSpaceActiveSet"/> solve, kept with its workspace.</summary>
 internal sealed class RangeSpaceScratch(int rows, int variables, int candidates)
 {
+    /// <summary>Row stride of <see cref="Inverse"/> and length of the vectors it multiplies: the variables and three more, a multiple of four.</summary>
+    public int InverseStride { get; } = (variables + 6) & ~3;
+
     /// <summary>Per row (in the order a full pass reads them), the scaled value below which it counts as violated; −∞ while active or switched off.</summary>
     public double[] Limits { get; } = new double[rows];
 
@@ -21,6 +24,18 @@ internal sealed class RangeSpaceScratch(int rows, int variables, int candidates)
     /// <summary>Per listed candidate, its slack at x₀.</summary>
     public double[] CandidateBase { get; } = new double[candidates];
 
-    /// <summary>Per listed candidate c, the row S_cA over the active rows in their order (stride: the variables).</summary>
-    public double[] CandidateCurvature { get; } = new double[candidates * variables];
+    /// <summary>Per listed candidate c, the row S_cA over the active rows in their order (stride <see cref="InverseStride"/>).</summary>
+    public double[] CandidateCurvature { get; } = new double[candidates * ((variables + 6) & ~3)];
+
+    /// <summary>M = L⁻¹ of the active rows, row-major with stride <see cref="InverseStride"/>.</summary>
+    public double[] Inverse { get; } = new double[variables * ((variables + 6) & ~3)];
+
+    /// <summary>y = M·s of the last product.</summary>
+    public double[] Forward { get; } = new double[(variables + 6) & ~3];
+
+    /// <summary>The dual direction r.</summary>
+    public double[] Direction { get; } = new double[(variables + 6) & ~3];
+
+    /// <summary>A row set aside by a drop, and scratch for products.</summary>
+    public double[] Spare { get; } = new double[(variables + 6) & ~3];
 }
