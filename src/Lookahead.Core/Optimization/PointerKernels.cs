@@ -101,4 +101,23 @@ internal static unsafe class PointerKernels
 
         return sum;
     }
+
+    /// <summary>
+    /// to[i] = from[i] for i &lt; count, four at a time in ascending order (so a copy one or more entries to the left
+    /// within the same row is safe); inline where a call to a general copy would cost more than the few entries moved.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public static void Copy(double* from, double* to, int count)
+    {
+        int i = 0;
+        for (; i + 4 <= count; i += 4)
+        {
+            Vector256.Store(Vector256.Load(from + i), to + i);
+        }
+
+        for (; i < count; i++)
+        {
+            to[i] = from[i];
+        }
+    }
 }

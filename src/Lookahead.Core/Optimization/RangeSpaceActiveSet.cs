@@ -479,82 +479,84 @@ internal sealed unsafe class RangeSpaceActiveSet
             isActive[active[k]] = false;
             limits[set.sweep.Position[active[k]]] = Limit(active[k]);
             var v = y;
-
-            // M's row k is set aside; the rows below move up whole (still in the old columns, 0 … i + 1 in slot i).
-            var spare = spareRow[..q];
-            spare.Clear();
-            m.Slice(k * ms, k + 1).CopyTo(spare);
-            for (int i = k + 1; i < q; i++)
+            fixed (double* lp = l, mp = m, spare = spareRow, kept = candidateCurvature)
             {
-                v[i - k - 1] = l[(i * n) + k];
-                var from = l.Slice(i * n, i + 1);
-                var to = l.Slice((i - 1) * n, i);
-                from[..k].CopyTo(to);
-                from[(k + 1)..].CopyTo(to[k..]);
-                m.Slice(i * ms, i + 1).CopyTo(m.Slice((i - 1) * ms, i + 1));
-                active[i - 1] = active[i];
-                U[i - 1] = U[i];
-            }
-
-            for (int i = 0; i < candidateCount; i++)
-            {
-                var row = candidateCurvature.Slice(i * ms, q);
-                row[(k + 1)..].CopyTo(row[k..]);
-            }
-
-            q--;
-            Count = q;
-
-            // L's trailing block absorbs v by rotations of (column j, v); the same rotations, applied to the rows of M
-            // and the set-aside row, keep M = L⁻¹ (with [L̃ 0] = L'Q, M̃ is the first rows of QᵀM without column k).
-            for (int j = k; j < q; j++)
-            {
-                double diagonal = l[(j * n) + j];
-                double vj = v[j - k];
-                double radius = Math.Sqrt((diagonal * diagonal) + (vj * vj));
-                double c = diagonal / radius;
-                double s = vj / radius;
-                l[(j * n) + j] = radius;
-                for (int i = j + 1; i < q; i++)
+                // M's row k is set aside; the rows below move up a slot without their entry in column k (row
+                // operations commute with dropping a column), L's the same; what L had in column k is v.
+                new Span<double>(spare, q).Clear();
+                Copy(mp + (k * ms), spare, k);
+                for (int i = k + 1; i < q; i++)
                 {
-                    double lij = l[(i * n) + j];
-                    l[(i * n) + j] = (c * lij) + (s * v[i - k]);
-                    v[i - k] = (c * v[i - k]) - (s * lij);
+                    double* from = lp + (i * n);
+                    double* to = from - n;
+                    v[i - k - 1] = from[k];
+                    Copy(from, to, k);
+                    Copy(from + k + 1, to + k, i - k);
+                    from = mp + (i * ms);
+                    to = from - ms;
+                    Copy(from, to, k);
+                    Copy(from + k + 1, to + k, i - k);
+
+                    // Slot i − 1 now holds a row with entries 0 … i − 1; the rest of its block of four stays zero.
+                    for (int c = i; c < ((i + 3) & ~3); c++)
+                    {
+                        to[c] = 0;
+                    }
+
+                    active[i - 1] = active[i];
+                    U[i - 1] = U[i];
                 }
 
-                Rotate(m.Slice(j * ms, j + 2), spare[..(j + 2)], c, s);
-            }
+                for (int i = 0; i < candidateCount; i++)
+                {
+                    double* row = kept + (i * ms);
+                    Copy(row + k + 1, row + k, q - k - 1);
+                }
 
-            for (int j = k; j < q; j++)
-            {
-                var row = m.Slice(j * ms, j + 2);
-                row[(k + 1)..].CopyTo(row[k..]);
-                row[j + 1] = 0;
+                q--;
+                Count = q;
+
+                // L's trailing block absorbs v by rotations of (column j, v); the same rotations, applied to the rows of
+                // M and the set-aside row, keep M = L⁻¹ (with [L̃ 0] = L'Q, M̃ is the first rows of QᵀM without column k).
+                for (int j = k; j < q; j++)
+                {
+                    double diagonal = lp[(j * n) + j];
+                    double vj = v[j - k];
+                    double radius = Math.Sqrt((diagonal * diagonal) + (vj * vj));
+                    double c = diagonal / radius;
+                    double s = vj / radius;
+                    lp[(j * n) + j] = radius;
+                    for (int i = j + 1; i < q; i++)
+                    {
+                        double lij = lp[(i * n) + j];
+                        lp[(i * n) + j] = (c * lij) + (s * v[i - k]);
+                        v[i - k] = (c * v[i - k]) - (s * lij);
+                    }
+
+                    Rotate(mp + (j * ms), spare, j + 1, c, s);
+                }
             }
         }
 
-        /// <summary>[a; b] ← [c·a + s·b; −s·a + c·b], four entries at a time.</summary>
-        private static void Rotate(Span<double> a, Span<double> b, double c, double s)
+        /// <summary>[a; b] ← [c·a + s·b; −s·a + c·b] over <paramref name="length"/> entries, four at a time.</summary>
+        private static void Rotate(double* a, double* b, int length, double c, double s)
         {
-            fixed (double* ap = a, bp = b)
+            int i = 0;
+            var cv = Vector256.Create(c);
+            var sv = Vector256.Create(s);
+            for (; i + 4 <= length; i += 4)
             {
-                int i = 0;
-                var cv = Vector256.Create(c);
-                var sv = Vector256.Create(s);
-                for (; i + 4 <= a.Length; i += 4)
-                {
-                    var av = Vector256.Load(ap + i);
-                    var bv = Vector256.Load(bp + i);
-                    Vector256.Store((cv * av) + (sv * bv), ap + i);
-                    Vector256.Store((cv * bv) - (sv * av), bp + i);
-                }
+                var av = Vector256.Load(a + i);
+                var bv = Vector256.Load(b + i);
+                Vector256.Store((cv * av) + (sv * bv), a + i);
+                Vector256.Store((cv * bv) - (sv * av), b + i);
+            }
 
-                for (; i < a.Length; i++)
-                {
-                    double av = ap[i];
-                    ap[i] = (c * av) + (s * bp[i]);
-                    bp[i] = (c * bp[i]) - (s * av);
-                }
+            for (; i < length; i++)
+            {
+                double av = a[i];
+                a[i] = (c * av) + (s * b[i]);
+                b[i] = (c * b[i]) - (s * av);
             }
         }
 
