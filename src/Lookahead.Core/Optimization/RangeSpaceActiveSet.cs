@@ -447,25 +447,39 @@ internal sealed unsafe class RangeSpaceActiveSet
             int q = Count;
             double d = Math.Sqrt(curvatureLeft);
             double inverse = 1 / d;
-            var lRow = l.Slice(q * n, q + 1);
-            var mRow = m.Slice(q * ms, ms);
-            y[..q].CopyTo(lRow);
-            for (int i = 0; i < q; i++)
+            fixed (double* lRow = l.Slice(q * n), mRow = m.Slice(q * ms), yp = y, rp = R, kept = candidateCurvature, sRow = set.curvature.AsSpan(candidate * p, p))
+            fixed (int* listed = candidates)
             {
-                mRow[i] = -R[i] * inverse;
+                Copy(yp, lRow, q);
+                var scale = Vector256.Create(-inverse);
+                int i = 0;
+                for (; i + 4 <= q; i += 4)
+                {
+                    Vector256.Store(Vector256.Load(rp + i) * scale, mRow + i);
+                }
+
+                for (; i < q; i++)
+                {
+                    mRow[i] = -rp[i] * inverse;
+                }
+
+                lRow[q] = d;
+                mRow[q] = inverse;
+                for (i = q + 1; i < ((q + 4) & ~3); i++)
+                {
+                    mRow[i] = 0;
+                }
+
+                // S is symmetric: the listed rows' new entries S_cp are read along p's row.
+                for (i = 0; i < candidateCount; i++)
+                {
+                    kept[(i * ms) + q] = sRow[listed[i]];
+                }
             }
 
-            lRow[q] = d;
-            mRow[q] = inverse;
-            mRow[(q + 1)..((q + 4) & ~3)].Clear();
             active[q] = candidate;
             isActive[candidate] = true;
             limits[set.sweep.Position[candidate]] = double.NegativeInfinity;
-            for (int i = 0; i < candidateCount; i++)
-            {
-                candidateCurvature[(i * ms) + q] = set.curvature[((long)candidate * p) + candidates[i]];
-            }
-
             Count = q + 1;
         }
 
