@@ -238,17 +238,20 @@ internal sealed unsafe class RangeSpaceActiveSet
         /// <summary>n_cᵀx₀ − b_c by position: slacks at the unconstrained minimiser, recorded by the first full pass.</summary>
         private readonly Span<double> baseSlack;
         private readonly Span<int> candidates;
-        private readonly Span<double> candidateBase;
 
-        /// <summary>Per listed candidate, S_cA in the active rows' order, kept through adds and drops (stride n).</summary>
-        private readonly Span<double> candidateCurvature;
+        /// <summary>S_pA for the row p = <see cref="rowOwner"/>, over the active rows in their order, kept through drops.</summary>
+        private readonly Span<double> candidateRow;
 
-        /// <summary>The listed candidate being added, or −1 when it was not taken from the list.</summary>
-        private int slot;
+        /// <summary>The row whose S_pA <see cref="candidateRow"/> holds (the pending candidate once chosen), or −1.</summary>
+        private int rowOwner;
         private bool baseKnown;
         private readonly int n;
         private readonly int p;
         private int candidateCount;
+
+        /// <summary>Listed rows before this one are active or were found satisfied.</summary>
+        private int listHead;
+
 
         public State(RangeSpaceActiveSet set, QpWorkspace workspace, ReadOnlySpan<double> rhs, Span<double> x)
         {
@@ -274,10 +277,9 @@ internal sealed unsafe class RangeSpaceActiveSet
             scaledRhs = scratch.ScaledRhs;
             values = scratch.Values;
             candidates = scratch.Candidates;
-            candidateBase = scratch.CandidateBase;
-            candidateCurvature = scratch.CandidateCurvature;
+            candidateRow = scratch.CandidateRow;
             candidateCount = 0;
-            slot = -1;
+            rowOwner = -1;
             baseKnown = false;
             Count = 0;
             baseSlack = scratch.BaseSlack;
@@ -314,13 +316,13 @@ internal sealed unsafe class RangeSpaceActiveSet
         {
             int q = Count;
             var sRow = set.curvature.AsSpan(candidate * p, p);
-            fixed (double* yp = y, rp = R, sp = sRow, kept = candidateCurvature)
+            fixed (double* yp = y, rp = R, sp = sRow, kept = candidateRow)
             fixed (int* ap = active)
             {
                 double* source = rp;
-                if (slot >= 0)
+                if (rowOwner == candidate)
                 {
-                    source = kept + (slot * ms);
+                    source = kept;
                 }
                 else
                 {
@@ -419,27 +421,22 @@ internal sealed unsafe class RangeSpaceActiveSet
         public readonly double CandidateSlack(int candidate)
         {
             double pending = set.curvature[((long)candidate * p) + candidate] * U[Count];
-            if (slot >= 0)
+            double start = baseSlack[set.sweep.Position[candidate]] + pending;
+            fixed (double* kept = candidateRow, up = U)
             {
-                return ListedSlack(slot) + pending;
-            }
+                if (rowOwner == candidate)
+                {
+                    return start + Dot(kept, up, Count);
+                }
 
-            var sRow = set.curvature.AsSpan(candidate * p, p);
-            fixed (double* sp = sRow, up = U)
-            fixed (int* ap = active)
-            {
-                return baseSlack[set.sweep.Position[candidate]] + pending + GatherDot(sp, ap, up, Count);
+                fixed (double* sp = set.curvature.AsSpan(candidate * p, p))
+                fixed (int* ap = active)
+                {
+                    return start + GatherDot(sp, ap, up, Count);
+                }
             }
         }
 
-        /// <summary>n_cᵀx − b_c at x₀ + W_A u_A for the listed candidate in slot i.</summary>
-        private readonly double ListedSlack(int i)
-        {
-            fixed (double* kept = candidateCurvature, up = U)
-            {
-                return candidateBase[i] + Dot(kept + (i * ms), up, Count);
-            }
-        }
 
         /// <summary>Borders L by [y, √(n_pᵀz)] and M by [−rᵀ/d, 1/d].</summary>
         public void Add(int candidate, double curvatureLeft)
@@ -447,8 +444,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             int q = Count;
             double d = Math.Sqrt(curvatureLeft);
             double inverse = 1 / d;
-            fixed (double* lRow = l.Slice(q * n), mRow = m.Slice(q * ms), yp = y, rp = R, kept = candidateCurvature, sRow = set.curvature.AsSpan(candidate * p, p))
-            fixed (int* listed = candidates)
+            fixed (double* lRow = l.Slice(q * n), mRow = m.Slice(q * ms), yp = y, rp = R)
             {
                 Copy(yp, lRow, q);
                 var scale = Vector256.Create(-inverse);
@@ -469,16 +465,11 @@ internal sealed unsafe class RangeSpaceActiveSet
                 {
                     mRow[i] = 0;
                 }
-
-                // S is symmetric: the listed rows' new entries S_cp are read along p's row.
-                for (i = 0; i < candidateCount; i++)
-                {
-                    kept[(i * ms) + q] = sRow[listed[i]];
-                }
             }
 
             active[q] = candidate;
             isActive[candidate] = true;
+            rowOwner = rowOwner == candidate ? -1 : rowOwner;
             limits[set.sweep.Position[candidate]] = double.NegativeInfinity;
             Count = q + 1;
         }
@@ -493,7 +484,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             isActive[active[k]] = false;
             limits[set.sweep.Position[active[k]]] = Limit(active[k]);
             var v = y;
-            fixed (double* lp = l, mp = m, spare = spareRow, kept = candidateCurvature)
+            fixed (double* lp = l, mp = m, spare = spareRow, kept = candidateRow)
             {
                 // M's row k is set aside; the rows below move up a slot without their entry in column k (row
                 // operations commute with dropping a column), L's the same; what L had in column k is v.
@@ -521,10 +512,9 @@ internal sealed unsafe class RangeSpaceActiveSet
                     U[i - 1] = U[i];
                 }
 
-                for (int i = 0; i < candidateCount; i++)
+                if (rowOwner >= 0)
                 {
-                    double* row = kept + (i * ms);
-                    Copy(row + k + 1, row + k, q - k - 1);
+                    Copy(kept + k + 1, kept + k, q - k - 1);
                 }
 
                 q--;
@@ -706,50 +696,50 @@ internal sealed unsafe class RangeSpaceActiveSet
         /// </summary>
         public int NextCandidate()
         {
-            int best = -1;
-            double bestScaled = 0;
-            for (int i = 0; i < candidateCount; i++)
+            // The list is taken in order, most violated at its pass first; a row found satisfied is not looked at
+            // again before the next pass. The row looked at has its S_cA gathered, kept if it is taken.
+            for (; listHead < candidateCount; listHead++)
             {
-                int c = candidates[i];
+                int c = candidates[listHead];
                 if (isActive[c])
                 {
                     continue;
                 }
 
-                double slack = ListedSlack(i);
-                if (slack * set.inverseNorms[c] < bestScaled && slack < -DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
+                GatherCandidateRow(c);
+                double slack;
+                fixed (double* kept = candidateRow, up = U)
                 {
-                    bestScaled = slack * set.inverseNorms[c];
-                    best = c;
-                    slot = i;
-                    break;
+                    slack = baseSlack[set.sweep.Position[c]] + Dot(kept, up, Count);
                 }
-            }
 
-            if (best >= 0)
-            {
-                return best;
+                if (slack < -DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(rhs[c])))
+                {
+                    return c;
+                }
             }
 
             FormPoint(-1);
-            best = FullPass();
-            KeepCandidateRows();
-            slot = best >= 0 ? 0 : -1;
+            int best = FullPass();
+            listHead = 0;
+            rowOwner = -1;
+            if (best >= 0)
+            {
+                GatherCandidateRow(best);
+            }
+
             return best;
         }
 
-        /// <summary>Gathers S_cA and the slack at x₀ of each row the last full pass listed.</summary>
-        private void KeepCandidateRows()
+        private void GatherCandidateRow(int c)
         {
-            fixed (double* kept = candidateCurvature, s = set.curvature)
+            fixed (double* kept = candidateRow, s = set.curvature)
             fixed (int* ap = active)
             {
-                for (int i = 0; i < candidateCount; i++)
-                {
-                    candidateBase[i] = baseSlack[set.sweep.Position[candidates[i]]];
-                    Gather(s + ((long)candidates[i] * p), ap, kept + (i * ms), Count);
-                }
+                Gather(s + ((long)c * p), ap, kept, Count);
             }
+
+            rowOwner = c;
         }
 
         /// <summary>x = x₀ + W_A u_A (+ u_q W_p while a candidate is pending), q + 1 directions summed per register.</summary>

@@ -21,11 +21,8 @@ internal sealed class RangeSpaceScratch(int rows, int variables, int candidates)
     /// <summary>The rows most violated at the last full pass, most violated first.</summary>
     public int[] Candidates { get; } = new int[candidates];
 
-    /// <summary>Per listed candidate, its slack at x₀.</summary>
-    public double[] CandidateBase { get; } = new double[candidates];
-
-    /// <summary>Per listed candidate c, the row S_cA over the active rows in their order (stride <see cref="InverseStride"/>).</summary>
-    public double[] CandidateCurvature { get; } = new double[candidates * ((variables + 6) & ~3)];
+    /// <summary>S_pA of the row being looked at or added (length <see cref="InverseStride"/>).</summary>
+    public double[] CandidateRow { get; } = new double[(variables + 6) & ~3];
 
     /// <summary>M = L⁻¹ of the active rows, row-major with stride <see cref="InverseStride"/>.</summary>
     public double[] Inverse { get; } = new double[variables * ((variables + 6) & ~3)];

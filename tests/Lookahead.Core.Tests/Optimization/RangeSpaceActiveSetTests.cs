@@ -170,12 +170,21 @@ public class RangeSpaceActiveSetTests
                 }
             }
 
-            // Dense rows over a leading run of the variables, as output limits.
+            // Dense rows over a leading run of the variables, as output limits; now and then a window of them (the row
+            // negated) sharing a last entry with the same sign, as a soft limit's slack.
             for (int k = 0; k < random.Next(0, n); k++)
             {
                 int run = random.Next(1, n + 1);
-                var row = Enumerable.Range(0, run).Select(j => (j, (2 * random.NextDouble()) - 1)).ToArray();
-                Add(row, -1 - random.NextDouble());
+                var row = Enumerable.Range(0, run).Select(j => (j, (2 * random.NextDouble()) - 1)).ToList();
+                if (run >= 5 && run < n && random.NextDouble() < 0.5)
+                {
+                    Add([.. row, (n - 1, 1.0)], -1 - random.NextDouble());
+                    Add([.. row.Select(e => (e.Item1, -e.Item2)), (n - 1, 1.0)], -1 - random.NextDouble());
+                }
+                else
+                {
+                    Add(row, -1 - random.NextDouble());
+                }
             }
 
             // A repeated row and one implied by two others (dependent normals must be recognised).
