@@ -10,9 +10,9 @@ namespace Lookahead.Core.Optimization;
 /// </summary>
 internal static unsafe class PointerKernels
 {
-    /// <summary>d_i = a_iᵀv over the first <paramref name="length"/> entries (a multiple of four): one pass over v.</summary>
+    /// <summary>[a_0ᵀv, a_1ᵀv, a_2ᵀv, a_3ᵀv] over the first <paramref name="length"/> entries (a multiple of four).</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public static void FourDots(double* a0, double* a1, double* a2, double* a3, double* v, int length, out double d0, out double d1, out double d2, out double d3)
+    public static Vector256<double> FourDots(double* a0, double* a1, double* a2, double* a3, double* v, int length)
     {
         var s0 = Vector256<double>.Zero;
         var s1 = Vector256<double>.Zero;
@@ -27,10 +27,21 @@ internal static unsafe class PointerKernels
             s3 = Vector256.FusedMultiplyAdd(Vector256.Load(a3 + c), vv, s3);
         }
 
-        d0 = Vector256.Sum(s0);
-        d1 = Vector256.Sum(s1);
-        d2 = Vector256.Sum(s2);
-        d3 = Vector256.Sum(s3);
+        return SumsOfFour(s0, s1, s2, s3);
+    }
+
+    /// <summary>[Σs0, Σs1, Σs2, Σs3]: the four horizontal sums at once (two pairwise adds and a swap of halves).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public static Vector256<double> SumsOfFour(Vector256<double> s0, Vector256<double> s1, Vector256<double> s2, Vector256<double> s3)
+    {
+        if (Avx.IsSupported)
+        {
+            var s01 = Avx.HorizontalAdd(s0, s1);
+            var s23 = Avx.HorizontalAdd(s2, s3);
+            return Avx.Permute2x128(s01, s23, 0x20) + Avx.Permute2x128(s01, s23, 0x31);
+        }
+
+        return Vector256.Create(Vector256.Sum(s0), Vector256.Sum(s1), Vector256.Sum(s2), Vector256.Sum(s3));
     }
 
     /// <summary>Σ_i row[index_i]·weight_i, four gathered entries at a time.</summary>

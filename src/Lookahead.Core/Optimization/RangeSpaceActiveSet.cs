@@ -355,18 +355,17 @@ internal sealed unsafe class RangeSpaceActiveSet
             {
                 // forward = M source, four rows at a time in one pass over source: a row's entries right of its
                 // diagonal are zero to the end of its block of four (see the class remarks), so every product is whole.
-                double norm2 = 0;
+                var squares = Vector256<double>.Zero;
                 int row = 0;
                 for (; row + 4 <= q; row += 4)
                 {
                     double* m0 = mp + (row * ms);
-                    FourDots(m0, m0 + ms, m0 + (2 * ms), m0 + (3 * ms), source, row + 4, out double y0, out double y1, out double y2, out double y3);
-                    forward[row] = y0;
-                    forward[row + 1] = y1;
-                    forward[row + 2] = y2;
-                    forward[row + 3] = y3;
-                    norm2 += (y0 * y0) + (y1 * y1) + (y2 * y2) + (y3 * y3);
+                    var block = FourDots(m0, m0 + ms, m0 + (2 * ms), m0 + (3 * ms), source, row + 4);
+                    Vector256.Store(block, forward + row);
+                    squares = Vector256.FusedMultiplyAdd(block, block, squares);
                 }
+
+                double norm2 = Vector256.Sum(squares);
 
                 for (; row < q; row++)
                 {

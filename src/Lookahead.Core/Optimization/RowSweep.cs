@@ -391,7 +391,7 @@ internal sealed unsafe class RowSweep
                     double* e1 = entries + offsets[g + 1];
                     double* e2 = entries + offsets[g + 2];
                     double* e3 = entries + offsets[g + 3];
-                    FourDots(e0, e1, e2, e3, x + start, common, out values[0], out values[1], out values[2], out values[3]);
+                    Vector256.Store(FourDots(e0, e1, e2, e3, x + start, common), values);
                 }
             }
 
