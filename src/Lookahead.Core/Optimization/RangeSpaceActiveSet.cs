@@ -443,9 +443,14 @@ internal sealed unsafe class RangeSpaceActiveSet
             int q = Count;
             double d = Math.Sqrt(curvatureLeft);
             double inverse = 1 / d;
-            fixed (double* lRow = l.Slice(q * n), mRow = m.Slice(q * ms), yp = y, rp = R)
+            fixed (double* lp = l, mRow = m.Slice(q * ms), yp = y, rp = R)
             {
-                Copy(yp, lRow, q);
+                // L is kept by columns (a drop rotates its columns), so its new row is written across them.
+                for (int j = 0; j < q; j++)
+                {
+                    lp[(j * n) + q] = yp[j];
+                }
+
                 var scale = Vector256.Create(-inverse);
                 int i = 0;
                 for (; i + 4 <= q; i += 4)
@@ -458,7 +463,7 @@ internal sealed unsafe class RangeSpaceActiveSet
                     mRow[i] = -rp[i] * inverse;
                 }
 
-                lRow[q] = d;
+                lp[(q * n) + q] = d;
                 mRow[q] = inverse;
                 for (i = q + 1; i < ((q + 4) & ~3); i++)
                 {
@@ -485,19 +490,31 @@ internal sealed unsafe class RangeSpaceActiveSet
             var v = y;
             fixed (double* lp = l, mp = m, spare = spareRow, kept = candidateRow)
             {
+                // L (by columns) loses row and column k: what column k had below the diagonal is v, the columns
+                // before it close up over row k, the columns after it move one column left and one row up.
+                fixed (double* vp = v)
+                {
+                    Copy(lp + (k * n) + k + 1, vp, q - k - 1);
+                }
+
+                for (int j = 0; j < k; j++)
+                {
+                    Copy(lp + (j * n) + k + 1, lp + (j * n) + k, q - k - 1);
+                }
+
+                for (int j = k + 1; j < q; j++)
+                {
+                    Copy(lp + (j * n) + j, lp + ((j - 1) * n) + j - 1, q - j);
+                }
+
                 // M's row k is set aside; the rows below move up a slot without their entry in column k (row
-                // operations commute with dropping a column), L's the same; what L had in column k is v.
+                // operations commute with dropping a column).
                 new Span<double>(spare, q).Clear();
                 Copy(mp + (k * ms), spare, k);
                 for (int i = k + 1; i < q; i++)
                 {
-                    double* from = lp + (i * n);
-                    double* to = from - n;
-                    v[i - k - 1] = from[k];
-                    Copy(from, to, k);
-                    Copy(from + k + 1, to + k, i - k);
-                    from = mp + (i * ms);
-                    to = from - ms;
+                    double* from = mp + (i * ms);
+                    double* to = from - ms;
                     Copy(from, to, k);
                     Copy(from + k + 1, to + k, i - k);
 
@@ -521,22 +538,20 @@ internal sealed unsafe class RangeSpaceActiveSet
 
                 // L's trailing block absorbs v by rotations of (column j, v); the same rotations, applied to the rows of
                 // M and the set-aside row, keep M = L⁻¹ (with [L̃ 0] = L'Q, M̃ is the first rows of QᵀM without column k).
-                for (int j = k; j < q; j++)
+                fixed (double* vp = v)
                 {
-                    double diagonal = lp[(j * n) + j];
-                    double vj = v[j - k];
-                    double radius = Math.Sqrt((diagonal * diagonal) + (vj * vj));
-                    double c = diagonal / radius;
-                    double s = vj / radius;
-                    lp[(j * n) + j] = radius;
-                    for (int i = j + 1; i < q; i++)
+                    for (int j = k; j < q; j++)
                     {
-                        double lij = lp[(i * n) + j];
-                        lp[(i * n) + j] = (c * lij) + (s * v[i - k]);
-                        v[i - k] = (c * v[i - k]) - (s * lij);
+                        double* column = lp + (j * n) + j;
+                        double diagonal = column[0];
+                        double vj = vp[j - k];
+                        double radius = Math.Sqrt((diagonal * diagonal) + (vj * vj));
+                        double c = diagonal / radius;
+                        double s = vj / radius;
+                        column[0] = radius;
+                        Rotate(column + 1, vp + (j - k + 1), q - j - 1, c, s);
+                        Rotate(mp + (j * ms), spare, j + 1, c, s);
                     }
-
-                    Rotate(mp + (j * ms), spare, j + 1, c, s);
                 }
             }
         }
