@@ -68,9 +68,9 @@ public static class ColdSolvers
                     long t2 = Stopwatch.GetTimestamp();
                     free.Plan(requests[s]);
                     long t3 = Stopwatch.GetTimestamp();
-                    ra[r] = Stopwatch.GetElapsedTime(t0, t1).TotalMicroseconds;
-                    rb[r] = Stopwatch.GetElapsedTime(t1, t2).TotalMicroseconds;
-                    rc[r] = Stopwatch.GetElapsedTime(t2, t3).TotalMicroseconds;
+                    ra[r] = Microseconds.Between(t0, t1);
+                    rb[r] = Microseconds.Between(t1, t2);
+                    rc[r] = Microseconds.Between(t2, t3);
                 }
 
                 a[s] = Median(ra);

@@ -93,8 +93,8 @@ public static class DemoRatios
                 long t1 = Stopwatch.GetTimestamp();
                 free.Plan(requests[s]);
                 long t2 = Stopwatch.GetTimestamp();
-                a[r] = Stopwatch.GetElapsedTime(t0, t1).TotalMicroseconds;
-                b[r] = Stopwatch.GetElapsedTime(t1, t2).TotalMicroseconds;
+                a[r] = Microseconds.Between(t0, t1);
+                b[r] = Microseconds.Between(t1, t2);
             }
 
             limitedTimes[s] = Median(a);
@@ -107,7 +107,7 @@ public static class DemoRatios
         double p99 = limitedTimes[(int)Math.Ceiling(0.99 * limitedTimes.Length) - 1];
         Array.Sort(iterations);
         output.WriteLine($"demo ({(engineering ? "engineering units" : "fractions")}), {requests.Count} seeded states × {Repetitions} interleaved repetitions");
-        output.WriteLine($"unconstrained plan (limits removed): median {freeMedian:F1} µs");
+        output.WriteLine($"unconstrained plan (limits removed): median {freeMedian:F3} µs");
         output.WriteLine($"limited plan: median {median:F1} µs = {median / freeMedian:F1}×, p99 {p99:F1} µs = {p99 / freeMedian:F1}×");
         output.WriteLine($"iterations: median {iterations[iterations.Length / 2]}, mean {iterations.Average():F2}, max {iterations[^1]}");
         return 0;

@@ -60,7 +60,7 @@ public static class StateTimer
     {
         long start = Stopwatch.GetTimestamp();
         model.Plan(request);
-        return Stopwatch.GetElapsedTime(start).TotalMicroseconds;
+        return Microseconds.Since(start);
     }
 
     private static double Median(double[] values)
