@@ -39,6 +39,12 @@ internal sealed unsafe class RowSweep
     private readonly double[] firstValues;
     private readonly double[] secondValues;
 
+    /// <summary>
+    /// Per position below <see cref="pairCount"/>, whether the four pair rows from it read consecutive columns in both
+    /// their entries (bounds and rate limits of one input after another): then x is loaded, not gathered.
+    /// </summary>
+    private readonly bool[] consecutiveFrom;
+
     /// <summary>Per row, how many of its leading entries sit in consecutive columns (read as a contiguous dot product).</summary>
     private readonly int[] runLengths;
 
@@ -206,6 +212,16 @@ internal sealed unsafe class RowSweep
             secondValues[k] = cols.Length == 2 ? vals[1] * inverseNorms[j] : 0;
         }
 
+        consecutiveFrom = new bool[pairCount];
+        for (int k = 0; k + 4 <= pairCount; k++)
+        {
+            consecutiveFrom[k] = true;
+            for (int e = 1; e < 4; e++)
+            {
+                consecutiveFrom[k] &= firstColumns[k + e] == firstColumns[k] + e && secondColumns[k + e] == secondColumns[k] + e;
+            }
+        }
+
         // Longer rows that are no mirrors, flat.
         generalOffsets = new int[primaryCount + 1];
         generalRuns = new int[primaryCount];
@@ -277,7 +293,7 @@ internal sealed unsafe class RowSweep
 
     public long Bytes =>
         (sizeof(int) * ((4L * p) + (2L * pairCount) + generalOffsets.Length + generalRuns.Length + generalColumns.Length + mirrorOf.Length + correctionOffsets.Length + correctionColumns.Length))
-        + (sizeof(double) * ((2L * pairCount) + generalValues.Length + correctionValues.Length + (2L * p)));
+        + (sizeof(double) * ((2L * pairCount) + generalValues.Length + correctionValues.Length + (2L * p))) + pairCount;
 
     /// <summary>values[k] = n_jᵀx/‖n_j‖ for the row j at every position k.</summary>
     public void Values(double* x, double* values)
@@ -336,23 +352,27 @@ internal sealed unsafe class RowSweep
     }
 
     /// <summary>
-    /// The scaled values of the rows with one or two entries at positions [from, to), four at a time by gathers; with
+    /// The scaled values of the rows with one or two entries at positions [from, to), four at a time (loaded where their
+    /// columns run on, gathered otherwise); with
     /// <paramref name="mirrorOffset"/> &gt; 0, the negated value also goes to the mirror that many positions on.
     /// </summary>
-    private static void PairValues(double* x, double* v0, int* c0, double* v1, int* c1, double* values, int from, int to, int mirrorOffset)
+    private void PairValues(double* x, double* v0, int* c0, double* v1, int* c1, double* values, int from, int to, int mirrorOffset)
     {
         int k = from;
         if (Avx2.IsSupported && Fma.IsSupported)
         {
-            for (; k + 4 <= to; k += 4)
+            fixed (bool* consecutive = consecutiveFrom)
             {
-                var first = Avx2.GatherVector256(x, Vector128.Load(c0 + k), 8);
-                var second = Avx2.GatherVector256(x, Vector128.Load(c1 + k), 8);
-                var value = Fma.MultiplyAdd(Vector256.Load(v0 + k), first, Vector256.Load(v1 + k) * second);
-                Vector256.Store(value, values + k);
-                if (mirrorOffset > 0)
+                for (; k + 4 <= to; k += 4)
                 {
-                    Vector256.Store(-value, values + k + mirrorOffset);
+                    var first = consecutive[k] ? Vector256.Load(x + c0[k]) : Avx2.GatherVector256(x, Vector128.Load(c0 + k), 8);
+                    var second = consecutive[k] ? Vector256.Load(x + c1[k]) : Avx2.GatherVector256(x, Vector128.Load(c1 + k), 8);
+                    var value = Fma.MultiplyAdd(Vector256.Load(v0 + k), first, Vector256.Load(v1 + k) * second);
+                    Vector256.Store(value, values + k);
+                    if (mirrorOffset > 0)
+                    {
+                        Vector256.Store(-value, values + k + mirrorOffset);
+                    }
                 }
             }
         }
