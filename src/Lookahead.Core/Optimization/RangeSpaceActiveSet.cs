@@ -283,11 +283,16 @@ internal sealed unsafe class RangeSpaceActiveSet
             baseKnown = false;
             Count = 0;
             baseSlack = scratch.BaseSlack;
-            for (int c = 0; c < p; c++)
+            // In the pass's order, with no branch: a row switched off (b = −∞) gets −∞ for both, as Limit gives it.
+            fixed (double* b = rhs, lim = limits, scaled = scaledRhs, inverse = set.sweep.InverseNormsByPosition)
+            fixed (int* order = set.sweep.Order)
             {
-                int k = set.sweep.Position[c];
-                limits[k] = Limit(c);
-                scaledRhs[k] = rhs[c] * set.inverseNorms[c];
+                for (int k = 0; k < p; k++)
+                {
+                    double bk = b[order[k]];
+                    scaled[k] = bk * inverse[k];
+                    lim[k] = (bk - (DualActiveSetSolver.FeasibilityTolerance * (1 + Math.Abs(bk)))) * inverse[k];
+                }
             }
         }
 

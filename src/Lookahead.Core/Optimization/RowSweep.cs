@@ -65,7 +65,6 @@ internal sealed unsafe class RowSweep
     private readonly int[] correctionColumns;
     private readonly double[] correctionValues;
 
-    private readonly double[] inverseNormsByPosition;
 
     public RowSweep(SparseRows rows, ReadOnlySpan<double> inverseNorms)
     {
@@ -270,11 +269,11 @@ internal sealed unsafe class RowSweep
         correctionColumns = [.. columns];
         correctionValues = [.. values];
 
-        inverseNormsByPosition = new double[p];
+        InverseNormsByPosition = new double[p];
         NormsByPosition = new double[p];
         for (int k = 0; k < p; k++)
         {
-            inverseNormsByPosition[k] = inverseNorms[Order[k]];
+            InverseNormsByPosition[k] = inverseNorms[Order[k]];
             NormsByPosition[k] = 1 / inverseNorms[Order[k]];
         }
     }
@@ -288,6 +287,9 @@ internal sealed unsafe class RowSweep
     /// <summary>‖n_j‖ by position.</summary>
     public double[] NormsByPosition { get; }
 
+    /// <summary>1/‖n_j‖ by position.</summary>
+    public double[] InverseNormsByPosition { get; }
+
     /// <summary>Rows whose value a pass takes from the row they mirror.</summary>
     public int MirrorCount => mirroredPairs + mirrorOf.Length;
 
@@ -298,7 +300,7 @@ internal sealed unsafe class RowSweep
     /// <summary>values[k] = n_jᵀx/‖n_j‖ for the row j at every position k.</summary>
     public void Values(double* x, double* values)
     {
-        fixed (double* v0 = firstValues, v1 = secondValues, inverseNorms = inverseNormsByPosition, correction = correctionValues)
+        fixed (double* v0 = firstValues, v1 = secondValues, inverseNorms = InverseNormsByPosition, correction = correctionValues)
         fixed (int* c0 = firstColumns, c1 = secondColumns, mirrored = mirrorOf, correctionAt = correctionOffsets, correctionColumn = correctionColumns)
         {
             int t = mirroredPairs;

@@ -182,24 +182,30 @@ internal sealed class ConstrainedProblem
     /// <summary>The limits holding with equality, slack bounds left out, ordered by step, kind and index.</summary>
     private List<ActiveLimit> ActiveLimits(QpWorkspace workspace, int activeCount)
     {
-        // Ranks in (step, kind, index) order were fixed with the rows, so sorting the plan's limits sorts integers.
-        var ranks = activeCount <= 512 ? stackalloc int[activeCount] : new int[activeCount];
+        // Ranks in (step, kind, index) order were fixed with the rows: marking them in a bitmap and reading its set
+        // bits in order sorts the plan's limits in O(rows/64 + active).
+        int words = (rowAtRank.Length + 63) / 64;
+        var marked = words <= 64 ? stackalloc ulong[words] : new ulong[words];
+        marked.Clear();
         int count = 0;
         foreach (int row in workspace.ActiveConstraints(activeCount))
         {
             if (!Rows.Meaning(row).IsSlackBound)
             {
-                ranks[count++] = reportRank[row];
+                int rank = reportRank[row];
+                marked[rank >> 6] |= 1UL << (rank & 63);
+                count++;
             }
         }
 
-        ranks = ranks[..count];
-        ranks.Sort();
         var active = new List<ActiveLimit>(count);
-        foreach (int rank in ranks)
+        for (int w = 0; w < words; w++)
         {
-            var what = Rows.Meaning(rowAtRank[rank]);
-            active.Add(new ActiveLimit(what.Kind, what.Step, what.Index));
+            for (ulong bits = marked[w]; bits != 0; bits &= bits - 1)
+            {
+                var what = Rows.Meaning(rowAtRank[(w << 6) + System.Numerics.BitOperations.TrailingZeroCount(bits)]);
+                active.Add(new ActiveLimit(what.Kind, what.Step, what.Index));
+            }
         }
 
         return active;
