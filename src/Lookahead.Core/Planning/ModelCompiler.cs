@@ -26,12 +26,13 @@ public static class ModelCompiler
     /// Up to this many limit rows, a model whose active set runs in range-space form (<see cref="Optimization.RangeSpaceActiveSet"/>)
     /// plans cold on it instead of the interior point: its steps cost O(q²) in the active rows, so it wins while the
     /// program is small. Measured on the demo over horizons (<c>--cold-solvers</c>, 200 seeded states, median / p99 µs,
-    /// range space against interior point): N = 20 (363 rows) 40 / 76 against 103 / 138; N = 30 (543) 80 / 138 against
-    /// 155 / 220; N = 40 (723) 146 / 275 against 218 / 302; N = 50 (903) 220 / 554 against 274 / 403. As served (inputs
-    /// in %) alike, but at N = 40 the p99 was 300 against 298. The tail decides: past about 600 rows the interior
-    /// point's is the shorter.
+    /// range space against interior point, 3 December 2026, fifth session): N = 20 (363 rows) 21 / 41 against
+    /// 103 / 133; N = 30 (543) 41 / 81 against 159 / 213; N = 40 (723) 78 / 176 against 221 / 310; N = 50 (903)
+    /// 100 / 329 against 261 / 394; as served (inputs in %) alike. It wins on both at every horizon measured, and S
+    /// alone must fit 2²⁰ doubles (<see cref="Optimization.RangeSpaceActiveSet.Fits"/>), so 1,024 rows is every program
+    /// the form takes.
     /// </summary>
-    internal const int RangeSpaceRowsUpTo = 600;
+    internal const int RangeSpaceRowsUpTo = 1024;
 
     /// <summary>Compiles <paramref name="document"/>.</summary>
     /// <exception cref="ModelValidationException">The document is invalid, or the requested terminal weight does not exist.</exception>
