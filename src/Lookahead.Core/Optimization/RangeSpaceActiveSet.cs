@@ -12,17 +12,20 @@ namespace Lookahead.Core.Optimization;
 /// direction r = S_AA⁻¹S_Ap = Mᵀ(M S_Ap) takes two triangular products with independent rows, and a row's slack is
 /// its slack at x₀ plus S_cA u_A. A step then costs O(q²) instead of the O(n(n − q)) of J = L⁻ᵀQ.
 /// <para>
-/// The row to add is taken from a short list of the rows most violated at the last full pass over all rows, re-valued
-/// exactly through S; only when none of them is still violated is x formed and every row passed again. That pass is
-/// what the most-violated rule would pay on every addition; any violated row keeps the method finite and its
-/// optimum the same (the program is strictly convex), only the path can differ.
+/// The row to add is taken from a short list of the rows most violated at the last full pass over all rows
+/// (<see cref="RowSweep"/>), walked once in that order: each is re-valued exactly through S, the first still violated
+/// is added, and one found satisfied is left until the next pass. Only when the list is used up is x formed and every
+/// row passed again. That pass is what the most-violated rule would pay on every addition; any violated row keeps the
+/// method finite and its optimum the same (the program is strictly convex), only the path can differ.
 /// </para>
 /// Adding a row borders L by one row and M by −rᵀ/d (d the new diagonal); dropping one removes its row and column
 /// from L and restores the trailing block by rotations, which applied to M's rows keep M = L⁻¹: O(q²) either way.
+/// M's rows carry zeros to the end of their block of four, so the products need no scalar corners; L is kept by
+/// columns, which are what a drop rotates.
 /// <para>
-/// Measured against the J form on the same plans (docs/performance.md): M1 with input and rate limits 33 µs against
-/// 166–186 µs; the demo's limited plans on this path 70–82 µs against 805 µs. The optima agree to rounding (the
-/// tests hold the two forms to 1e-9); the candidate list can make the path differ.
+/// Measured against the J form on the same plans (docs/performance.md): M1 with input and rate limits 22–26 µs
+/// against 166–186 µs; the demo's limited plans 38–39 µs against 805 µs. The optima agree to rounding (the tests hold
+/// the two forms to 1e-9); the candidate list can make the path differ.
 /// </para>
 /// </summary>
 internal sealed unsafe class RangeSpaceActiveSet
@@ -42,8 +45,9 @@ internal sealed unsafe class RangeSpaceActiveSet
     public const long MaxEntries = 1L << 20;
 
     /// <summary>
-    /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on M1 with rate limits
-    /// (mean µs per plan, iterations): 1 (the most-violated rule) 117, 54; 4: 95, 68; 8: 80, 71; 16: 93, 70; 32: 94, 68.
+    /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on the demo (median µs per
+    /// plan, mean iterations), with the list walked once: 12: 41–42, 70.6; 16: 39–40, 71.8; 24: 40–41, 74.1; 32: 43,
+    /// 76.6 (longer lists age: more of their rows are stale by the time they are reached, and steps grow).
     /// </summary>
     public const int CandidateListLength = 16;
 

@@ -221,24 +221,51 @@ internal sealed unsafe class RowSweep
             }
         }
 
-        // Longer rows that are no mirrors, flat.
+        // Longer rows that are no mirrors, flat. A row's run of consecutive columns is padded with zeros to a multiple
+        // of four where x has the columns (entries of the row that fall inside the padding move into it), so every
+        // dot product over runs is whole vectors.
+        var flatColumns = new List<int>();
+        var flatValues = new List<double>();
         generalOffsets = new int[primaryCount + 1];
         generalRuns = new int[primaryCount];
         for (int g = 0; g < primaryCount; g++)
         {
             int j = Order[pairCount + g];
-            generalOffsets[g + 1] = generalOffsets[g] + rows.ColumnsOf(j).Length;
-            generalRuns[g] = runLengths[j];
+            var cols = rows.ColumnsOf(j);
+            var vals = rows.ValuesOf(j);
+            int start = cols[0];
+            int run = runLengths[j];
+            int padded = (run + 3) & ~3;
+            if (start + padded > rows.ColumnCount)
+            {
+                padded = run;
+            }
+
+            var dense = new double[padded];
+            int e = 0;
+            for (; e < cols.Length && cols[e] < start + padded; e++)
+            {
+                dense[cols[e] - start] = vals[e];
+            }
+
+            for (int c = 0; c < padded; c++)
+            {
+                flatColumns.Add(start + c);
+                flatValues.Add(dense[c]);
+            }
+
+            for (; e < cols.Length; e++)
+            {
+                flatColumns.Add(cols[e]);
+                flatValues.Add(vals[e]);
+            }
+
+            generalRuns[g] = padded;
+            generalOffsets[g + 1] = flatColumns.Count;
         }
 
-        generalColumns = new int[generalOffsets[primaryCount]];
-        generalValues = new double[generalOffsets[primaryCount]];
-        for (int g = 0; g < primaryCount; g++)
-        {
-            int j = Order[pairCount + g];
-            rows.ColumnsOf(j).CopyTo(generalColumns.AsSpan(generalOffsets[g]));
-            rows.ValuesOf(j).CopyTo(generalValues.AsSpan(generalOffsets[g]));
-        }
+        generalColumns = [.. flatColumns];
+        generalValues = [.. flatValues];
 
         // Their mirrors: what they add to the negated row.
         mirrorOf = new int[longMirrors.Length];
