@@ -588,10 +588,11 @@ internal sealed unsafe class RangeSpaceActiveSet
         }
 
         /// <summary>
-        /// One step of iterative refinement at the optimum: the active rows' residuals at the formed x, measured on
-        /// the rows themselves, are taken out along W_A (Δu = −S_AA⁻¹(N_Ax − b_A)). x = x₀ + W_Au sums terms far larger
-        /// than x when the multipliers are huge (soft limits at a raised weight: x₀'s slacks at −ρ/w), and the sum's
-        /// rounding would otherwise stay in the plan; the correction is small, so its own rounding is too.
+        /// One step of iterative refinement at the optimum, just after the full pass that found no row violated: the
+        /// active rows' residuals at the formed x, measured on the rows themselves, are taken out along W_A
+        /// (Δu = −S_AA⁻¹(N_Ax − b_A)). x = x₀ + W_Au sums terms far larger than x when the multipliers are huge (soft
+        /// limits at a raised weight: x₀'s slacks at −ρ/w), and the sum's rounding would otherwise stay in the plan; the
+        /// correction is small, so its own rounding is too.
         /// </summary>
         public void Refine()
         {
@@ -601,20 +602,27 @@ internal sealed unsafe class RangeSpaceActiveSet
                 return;
             }
 
+            // The last full pass was made at this x: its values tell whether any active row is off its limit; only
+            // then are the residuals taken row by row, as the step needs them.
             bool off = false;
-            fixed (double* xp = x)
+            for (int i = 0; i < q && !off; i++)
             {
-                for (int i = 0; i < q; i++)
-                {
-                    double b = rhs[active[i]];
-                    y[i] = b - set.sweep.RowDot(active[i], xp);
-                    off |= Math.Abs(y[i]) > RefineAbove * (1 + Math.Abs(b));
-                }
+                int k = set.sweep.Position[active[i]];
+                double b = rhs[active[i]];
+                off = Math.Abs(b - (values[k] * set.sweep.NormsByPosition[k])) > RefineAbove * (1 + Math.Abs(b));
             }
 
             if (!off)
             {
                 return;
+            }
+
+            fixed (double* xp = x)
+            {
+                for (int i = 0; i < q; i++)
+                {
+                    y[i] = rhs[active[i]] - set.sweep.RowDot(active[i], xp);
+                }
             }
 
             // Δu = S_AA⁻¹(b_A − N_Ax), into R.
