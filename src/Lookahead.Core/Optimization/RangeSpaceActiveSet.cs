@@ -45,9 +45,10 @@ internal sealed unsafe class RangeSpaceActiveSet
     public const long MaxEntries = 1L << 20;
 
     /// <summary>
-    /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on the demo (median µs per
-    /// plan, mean iterations), with the list walked once: 12: 41–42, 70.6; 16: 39–40, 71.8; 24: 40–41, 74.1; 32: 43,
-    /// 76.6 (longer lists age: more of their rows are stale by the time they are reached, and steps grow).
+    /// Rows kept from a full pass as the next candidates (see the class remarks). Measured on the demo (<c>--demo-ratios</c>,
+    /// two rounds alternating; median µs per plan, mean steps): 12: 39.7–40.3, 70.6; 16: 38.5–38.6, 71.8; 24:
+    /// 39.1–39.7, 74.1; 32: 40.2–40.5, 76.6. Longer lists age: more of their rows are stale by the time they are
+    /// reached, and the steps grow.
     /// </summary>
     public const int CandidateListLength = 16;
 
