@@ -50,17 +50,17 @@ public static class CompiledSizeEstimate
                 double rows = N * (inputSides + rateSides + outputSides);
                 double withSlacks = decision + soft;
                 perVariant += withSlacks * withSlacks * (soft > 0 ? 2 : 1);
-                if (rateSides == 0 && outputSides == 0 && rows <= GuesserRowLimit)
-                {
-                    perVariant += rows * (rows + decision);
-                }
-
                 // The range-space form's S and W (rows include the slacks' own bounds), and its sweep's layout: about
                 // eight doubles' worth per row and a copy of the output rows that mirror no other (half of them).
+                // Without it, a program of input bounds only keeps the guesser's S and directions instead.
                 double allRows = rows + soft;
                 if (allRows <= int.MaxValue && withSlacks <= int.MaxValue && Optimization.RangeSpaceActiveSet.Fits((int)withSlacks, (int)allRows))
                 {
                     perVariant += (allRows * (allRows + withSlacks + 8)) + (0.75 * outputSides * m * N * (N + 1) / 2);
+                }
+                else if (rateSides == 0 && outputSides == 0 && rows <= GuesserRowLimit)
+                {
+                    perVariant += rows * (rows + decision);
                 }
 
                 // Limit rows: an int and a double per nonzero (1.5 doubles); a soft output row at stage k has about k·m.
