@@ -285,6 +285,12 @@ public sealed partial class DualActiveSetSolver
                 return new QpResult(QpStatus.Infeasible, iterations, q, candidate);
             }
 
+            if (double.IsNaN(t))
+            {
+                // Overflowed data (a state near the largest double): no row can be chosen to leave, so stop here.
+                return new QpResult(QpStatus.NotFinite, iterations, q, -1);
+            }
+
             if (primalStep)
             {
                 for (int i = 0; i < n; i++)

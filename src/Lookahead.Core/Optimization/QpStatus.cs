@@ -10,4 +10,7 @@ public enum QpStatus
 
     /// <summary>The constraints admit no point (a violated constraint could not be satisfied by any step).</summary>
     Infeasible,
+
+    /// <summary>A step length came out not a number: the data's scale overflowed the arithmetic; the point is no answer.</summary>
+    NotFinite,
 }

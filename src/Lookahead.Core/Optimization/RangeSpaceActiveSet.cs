@@ -197,6 +197,13 @@ internal sealed unsafe class RangeSpaceActiveSet
                 return new QpResult(QpStatus.Infeasible, iterations, q, candidate);
             }
 
+            if (double.IsNaN(t))
+            {
+                // Overflowed data (a state near the largest double): no row can be chosen to leave, so stop here.
+                s.FormPoint(candidate);
+                return new QpResult(QpStatus.NotFinite, iterations, q, -1);
+            }
+
             for (int i = 0; i < q; i++)
             {
                 u[i] -= t * step[i];
@@ -232,6 +239,7 @@ internal sealed unsafe class RangeSpaceActiveSet
 
         /// <summary>Row stride of M: room for each row's zeros to the end of its block of four.</summary>
         private readonly int ms;
+
         private readonly Span<int> active;
         private readonly Span<bool> isActive;
         private readonly Span<double> limits;
@@ -256,7 +264,6 @@ internal sealed unsafe class RangeSpaceActiveSet
 
         /// <summary>Listed rows before this one are active or were found satisfied.</summary>
         private int listHead;
-
 
         public State(RangeSpaceActiveSet set, QpWorkspace workspace, ReadOnlySpan<double> rhs, Span<double> x)
         {
@@ -288,6 +295,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             baseKnown = false;
             Count = 0;
             baseSlack = scratch.BaseSlack;
+
             // In the pass's order, with no branch: a row switched off (b = −∞) gets −∞ for both, as Limit gives it.
             fixed (double* b = rhs, lim = limits, scaled = scaledRhs, inverse = set.sweep.InverseNormsByPosition)
             fixed (int* order = set.sweep.Order)
@@ -723,8 +731,8 @@ internal sealed unsafe class RangeSpaceActiveSet
         }
 
         /// <summary>
-        /// The next row to add: the most violated of the kept list, each re-valued through S; when none is, a full pass
-        /// at the formed point refills the list. −1 when no row is violated.
+        /// The next row to add: the first listed row still violated, re-valued through S; when none is, a full pass at
+        /// the formed point refills the list and its most violated row is taken. −1 when no row is violated.
         /// </summary>
         public int NextCandidate()
         {
@@ -763,6 +771,7 @@ internal sealed unsafe class RangeSpaceActiveSet
             return best;
         }
 
+        /// <summary>S_cA into <see cref="candidateRow"/>, which row c then owns.</summary>
         private void GatherCandidateRow(int c)
         {
             fixed (double* kept = candidateRow, s = set.curvature)

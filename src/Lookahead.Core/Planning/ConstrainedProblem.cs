@@ -109,7 +109,13 @@ internal sealed class ConstrainedProblem
             // The solver meets limits to its feasibility tolerance; a receiving system checks them exactly, so an
             // input a rounding error outside its window (−1e−17 for a fan whose minimum is 0) is put back on it.
             Rows.ClipToInputLimits(inputs);
-            if (result.Status != QpStatus.Optimal)
+            if (result.Status == QpStatus.NotFinite)
+            {
+                // The request's numbers overflowed the solve: no inputs are an answer, and the model's overflow check
+                // names the request's field instead.
+                inputs.Fill(double.NaN);
+            }
+            else if (result.Status != QpStatus.Optimal)
             {
                 // Stopped early or blocked: the best point found, moved onto every hard input and rate limit.
                 Rows.ProjectOntoHardLimits(inputs, previousInput, unreachable);

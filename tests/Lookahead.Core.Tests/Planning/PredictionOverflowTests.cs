@@ -49,6 +49,21 @@ public class PredictionOverflowTests
         Assert.Equal(field, RefusedField(() => model.FirstMove(new PlanRequest(state, reference, previousInput), move)));
     }
 
+    // Two zones with input and rate limits plan on the range-space active set: a state near the largest double turns
+    // its step lengths into NaN, which must end the solve (no row to drop) and come back as the state's refusal.
+    [Theory]
+    [InlineData(1e308)]
+    [InlineData(-1e308)]
+    [InlineData(1e300)]
+    public void RangeSpaceLimitedPlanNamesAnOverflowingState(double size)
+    {
+        var model = ModelCompiler.Compile(TestModels.Discrete(
+            [[0.9, 0.05], [0.04, 0.85]], [[0.1, 0.0], [0.02, 0.08]], 15, [1.0, 1.0], [0.05, 0.05], s: [0.1, 0.1],
+            limits: new LimitsSpec([0.0, 0.0], [100.0, 100.0], [-5.0, -5.0], [5.0, 5.0])));
+        Assert.True(model.ConstrainedWithPrevious!.Solver.UsesRangeSpace);
+        Assert.Equal("state", RefusedField(() => model.Plan(new PlanRequest([size, 0.0], [-1.0, 0.5], [40.0, 40.0]))));
+    }
+
     [Theory]
     [MemberData(nameof(OversizedFields))]
     public void LimitedPlanNamesTheOversizedField(double[] state, double[]? reference, double[]? previousInput, string field)
