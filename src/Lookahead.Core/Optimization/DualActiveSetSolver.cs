@@ -115,7 +115,7 @@ public sealed partial class DualActiveSetSolver
 
     public int EqualityCount { get; }
 
-    public QpWorkspace CreateWorkspace() => new(Variables, Constraints.RowCount);
+    public QpWorkspace CreateWorkspace() => new(Variables, Constraints.RowCount, withJ: rangeSpace is null);
 
     /// <summary>Solves the program for linear term <paramref name="linear"/> (a) and right-hand sides <paramref name="rhs"/> (b).</summary>
     /// <param name="linear">a; ignored when <paramref name="unconstrained"/> is true.</param>

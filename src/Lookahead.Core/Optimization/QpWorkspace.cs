@@ -7,11 +7,13 @@ namespace Lookahead.Core.Optimization;
 /// </summary>
 public sealed class QpWorkspace
 {
-    public QpWorkspace(int variables, int constraints)
+    /// <param name="withJ">False for a solver in range-space form, which never reads J (its M = L⁻¹ lives in
+    /// <see cref="RangeSpaceScratch"/>): n² doubles not held by every pooled workspace.</param>
+    public QpWorkspace(int variables, int constraints, bool withJ = true)
     {
         Variables = variables;
         Constraints = constraints;
-        J = new double[variables * variables];
+        J = withJ ? new double[variables * variables] : [];
         R = new double[variables * variables];
         D = new double[variables];
         Z = new double[variables];
