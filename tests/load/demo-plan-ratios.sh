@@ -4,13 +4,14 @@
 # seeded states spread over its operating range (zones 2 °C below to 3 °C above −20 °C, half with a previous input in
 # 0 … 100 %), each state planned on both models in turn, REPS times; the figure per state is the median of the
 # service's own solveMicroseconds, then the median and 99th percentile over states.
-#   STATES=200 REPS=9 bash tests/load/demo-plan-ratios.sh
-# Loopback only; about a minute. Prints a table and the ratios.
+#   STATES=200 REPS=9 WARMUP=30 bash tests/load/demo-plan-ratios.sh
+# Loopback only; about 20 s. Prints the ratios.
 source "$(dirname "${BASH_SOURCE[0]}")/common.sh"
 trap stop_service EXIT
 
 states="${STATES:-200}"
 reps="${REPS:-9}"
+warmup="${WARMUP:-30}"
 build_service
 start_service
 
@@ -26,10 +27,10 @@ PY
 limited_id="$(register "$demo")"
 free_id="$(register "$free_doc")"
 
-python3 - "$base" "$limited_id" "$free_id" "$states" "$reps" <<'PY'
+python3 - "$base" "$limited_id" "$free_id" "$states" "$reps" "$warmup" <<'PY'
 import http.client, json, random, statistics, sys, urllib.parse
 
-base, limited_id, free_id, count, reps = sys.argv[1], sys.argv[2], sys.argv[3], int(sys.argv[4]), int(sys.argv[5])
+base, limited_id, free_id, count, reps, warmup = sys.argv[1], sys.argv[2], sys.argv[3], int(sys.argv[4]), int(sys.argv[5]), int(sys.argv[6])
 url = urllib.parse.urlparse(base)
 connection = http.client.HTTPConnection(url.hostname, url.port)
 
@@ -49,8 +50,9 @@ for i in range(count):
         body["previousInput"] = [rnd.uniform(0, 100) for _ in range(3)]
     requests.append(json.dumps(body))
 
-# Warm-up: every state on both models, three times.
-for _ in range(3):
+# Warm-up: every state on both models, WARMUP times (30 unless set): the service's tiered JIT takes thousands of
+# plans to settle on optimised code (with 3, plans were still several times slower).
+for _ in range(warmup):
     for body in requests:
         plan(limited_id, body)
         plan(free_id, body)
