@@ -15,6 +15,12 @@ namespace Lookahead.Core.Optimization;
 /// and rate limits), then their mirrors in the same order, then the other rows with one or two entries; then the longer
 /// rows that are not mirrors (output limits), then the mirrors of those.
 /// </para>
+/// <para>
+/// Four rows with one or two entries whose columns run on (bounds and rate limits of one input after another) read x
+/// by loads, others by gathers; a longer row's run of consecutive columns is padded with zeros to whole vectors where
+/// x has the columns. Measured on the demo (docs/performance.md): the pass about halved by the mirrors, and 4 % of a
+/// plan by the loads.
+/// </para>
 /// </summary>
 internal sealed unsafe class RowSweep
 {
